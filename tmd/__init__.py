@@ -1,0 +1,9 @@
+"""tmd: preliminary sizing of passive dampers for wind-excited slender buildings.
+
+Results are for preliminary sizing only: wind-tunnel data and the measured
+properties of the built structure govern final design, a damper must be
+re-tuned to the as-built building, and local codes and licensed professional
+practice take precedence.
+"""
+
+__version__ = "0.1.0"

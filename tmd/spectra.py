@@ -1,0 +1,223 @@
+"""Modal force spectra: the load side of the response computation.
+
+Every spectrum here is a one-sided power spectral density per Hz of the modal
+(generalised) force, in N^2/Hz, so that the force variance is the integral of
+S_F(f) df from 0 to infinity. A spectrum is any object with
+
+* ``__call__(frequency_hz) -> psd`` evaluating on an array of any shape and
+  returning zero outside the support,
+* ``f_min_hz`` and ``f_max_hz``, the support (0 and ``inf`` are allowed),
+* ``breakpoints_hz``, frequencies where the spectrum is not smooth (may be
+  empty); the response engine puts panel edges there when they fall near a
+  resonance.
+
+The wind model (:mod:`tmd.loads`) produces spectra of this kind too, so the
+engine never needs to know where a spectrum came from.
+"""
+
+from __future__ import annotations
+
+import csv
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Protocol, runtime_checkable
+
+import numpy as np
+
+CSV_HEADER = ("frequency_hz", "psd_n2_per_hz")
+
+
+@runtime_checkable
+class ForceSpectrum(Protocol):
+    """What the engine needs of a modal force spectrum (one-sided, N^2/Hz)."""
+
+    f_min_hz: float
+    f_max_hz: float
+    breakpoints_hz: tuple[float, ...]
+
+    def __call__(self, frequency_hz: np.ndarray) -> np.ndarray: ...
+
+
+@dataclass(frozen=True)
+class WhiteSpectrum:
+    """Band-limited (or unlimited) white modal force.
+
+    Parameters
+    ----------
+    level : float
+        One-sided PSD G [N^2/Hz]. A two-sided PSD S0 per rad/s is G = 4 pi S0.
+    f_min_hz, f_max_hz : float
+        Support [Hz]; defaults 0 and infinity.
+    """
+
+    level: float
+    f_min_hz: float = 0.0
+    f_max_hz: float = np.inf
+    breakpoints_hz: tuple[float, ...] = ()
+
+    def __call__(self, frequency_hz):
+        f = np.asarray(frequency_hz, dtype=float)
+        inside = (f >= self.f_min_hz) & (f <= self.f_max_hz)
+        return np.where(inside, self.level, 0.0)
+
+
+@dataclass(frozen=True)
+class FirstOrderSpectrum:
+    """White force passed through a first-order low-pass filter.
+
+    S_F(f) = G / (1 + (f / f_c)^2), the spectrum of an Ornstein-Uhlenbeck
+    force F' = -2 pi f_c F + w. It is the simplest coloured load for which the
+    acceleration variance is finite, and it has an exact state-space form.
+
+    Parameters
+    ----------
+    level : float
+        One-sided PSD at zero frequency G [N^2/Hz].
+    corner_hz : float
+        Corner frequency f_c [Hz].
+    """
+
+    level: float
+    corner_hz: float
+    f_min_hz: float = 0.0
+    f_max_hz: float = np.inf
+    breakpoints_hz: tuple[float, ...] = ()
+
+    def __call__(self, frequency_hz):
+        f = np.asarray(frequency_hz, dtype=float)
+        return self.level / (1.0 + (f / self.corner_hz) ** 2)
+
+
+@dataclass(frozen=True)
+class TabulatedSpectrum:
+    """A spectrum given as a table, interpolated linearly in log-log.
+
+    Between table points log S is linear in log f (a power law on each
+    interval); outside the table the spectrum is zero, so the response is
+    integrated over the table's range only.
+
+    Parameters
+    ----------
+    frequency_hz : array
+        Strictly increasing, strictly positive frequencies [Hz].
+    psd_n2_per_hz : array
+        Strictly positive one-sided PSD values [N^2/Hz].
+    source : str
+        Where the table came from (shown in reports).
+    """
+
+    frequency_hz: np.ndarray
+    psd_n2_per_hz: np.ndarray
+    source: str = ""
+    _log_f: np.ndarray = field(init=False, repr=False, compare=False)
+    _log_s: np.ndarray = field(init=False, repr=False, compare=False)
+
+    def __post_init__(self):
+        f = np.asarray(self.frequency_hz, dtype=float)
+        s = np.asarray(self.psd_n2_per_hz, dtype=float)
+        problem = table_problem(f, s)
+        if problem:
+            raise ValueError(problem)
+        object.__setattr__(self, "frequency_hz", f)
+        object.__setattr__(self, "psd_n2_per_hz", s)
+        object.__setattr__(self, "_log_f", np.log(f))
+        object.__setattr__(self, "_log_s", np.log(s))
+
+    @property
+    def f_min_hz(self) -> float:
+        return float(self.frequency_hz[0])
+
+    @property
+    def f_max_hz(self) -> float:
+        return float(self.frequency_hz[-1])
+
+    @property
+    def breakpoints_hz(self) -> tuple[float, ...]:
+        return tuple(self.frequency_hz.tolist())
+
+    def __call__(self, frequency_hz):
+        f = np.asarray(frequency_hz, dtype=float)
+        inside = (f >= self.f_min_hz) & (f <= self.f_max_hz)
+        logf = np.log(np.where(inside, f, self.f_min_hz))
+        value = np.exp(np.interp(logf, self._log_f, self._log_s))
+        return np.where(inside, value, 0.0)
+
+    def variance(self) -> float:
+        """Force variance [N^2], the exact integral of the log-log interpolant."""
+        f, s = self.frequency_hz, self.psd_n2_per_hz
+        slope = np.diff(np.log(s)) / np.diff(np.log(f))
+        f0, f1, s0 = f[:-1], f[1:], s[:-1]
+        power = slope + 1.0
+        # Each interval is s0 (f/f0)^slope; integrate the power law exactly.
+        with np.errstate(divide="ignore", invalid="ignore"):
+            general = s0 * f0 / power * ((f1 / f0) ** power - 1.0)
+        log_case = s0 * f0 * np.log(f1 / f0)
+        return float(np.sum(np.where(np.abs(power) < 1e-12, log_case, general)))
+
+
+def table_problem(frequency_hz: np.ndarray, psd: np.ndarray) -> str:
+    """Describe what is wrong with a spectrum table, or return '' if nothing."""
+    if frequency_hz.ndim != 1 or frequency_hz.shape != psd.shape:
+        return "frequency and PSD columns must be 1-D and of equal length"
+    if frequency_hz.size < 2:
+        return "the table needs at least two rows"
+    if not np.all(np.isfinite(frequency_hz)) or np.any(frequency_hz <= 0):
+        bad = int(np.flatnonzero(~(np.isfinite(frequency_hz) & (frequency_hz > 0)))[0])
+        return f"row {bad + 1}: frequency_hz = {frequency_hz[bad]!r}; must be finite and > 0"
+    steps = np.diff(frequency_hz)
+    if np.any(steps <= 0):
+        bad = int(np.flatnonzero(steps <= 0)[0]) + 1
+        return (
+            f"row {bad + 1}: frequency_hz = {frequency_hz[bad]!r} does not exceed the row "
+            f"before ({frequency_hz[bad - 1]!r}); frequencies must be strictly increasing"
+        )
+    if not np.all(np.isfinite(psd)) or np.any(psd <= 0):
+        bad = int(np.flatnonzero(~(np.isfinite(psd) & (psd > 0)))[0])
+        return f"row {bad + 1}: psd_n2_per_hz = {psd[bad]!r}; must be finite and > 0"
+    return ""
+
+
+class SpectrumFileError(ValueError):
+    """A force-spectrum CSV that cannot be used; the message names file and row."""
+
+
+def read_force_psd_csv(path: str | Path) -> TabulatedSpectrum:
+    """Read a modal force PSD table with header ``frequency_hz,psd_n2_per_hz``.
+
+    Raises
+    ------
+    SpectrumFileError
+        With the file, row, value and what is allowed.
+    """
+    path = Path(path)
+    try:
+        text = path.read_text(encoding="utf-8")
+    except OSError as exc:
+        raise SpectrumFileError(f"{path}: cannot read the force spectrum ({exc.strerror})") from exc
+    rows = list(csv.reader(line for line in text.splitlines() if line.strip()))
+    if not rows or tuple(c.strip() for c in rows[0]) != CSV_HEADER:
+        got = ",".join(rows[0]) if rows else "(empty file)"
+        raise SpectrumFileError(f"{path}: header is {got!r}; expected {','.join(CSV_HEADER)!r}")
+    values = []
+    for number, row in enumerate(rows[1:], start=2):
+        if len(row) != 2:
+            raise SpectrumFileError(f"{path}: line {number} has {len(row)} columns; expected 2")
+        try:
+            values.append((float(row[0]), float(row[1])))
+        except ValueError as exc:
+            raise SpectrumFileError(f"{path}: line {number}: {exc}") from exc
+    table = np.array(values, dtype=float).reshape(-1, 2)
+    problem = table_problem(table[:, 0], table[:, 1])
+    if problem:
+        # Table rows count from the first data line; the file's line is one more.
+        raise SpectrumFileError(f"{path}: data {problem}")
+    return TabulatedSpectrum(table[:, 0], table[:, 1], source=str(path))
+
+
+def write_force_psd_csv(path: str | Path, frequency_hz, psd_n2_per_hz) -> None:
+    """Write a table in the format :func:`read_force_psd_csv` reads."""
+    with open(path, "w", newline="", encoding="utf-8") as handle:
+        writer = csv.writer(handle)
+        writer.writerow(CSV_HEADER)
+        for f, s in zip(frequency_hz, psd_n2_per_hz, strict=True):
+            writer.writerow([f"{f:.10g}", f"{s:.10g}"])
