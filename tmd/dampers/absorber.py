@@ -1,0 +1,126 @@
+"""The one linear absorber model that every passive option reduces to.
+
+An absorber j attached at the damper level (mode shape = 1 there) has a total
+mass m_j that moves with the structure, an internal coordinate r_j with its own
+frequency f_j and damping ratio zeta_j, and a coupling beta_j in (0, 1]:
+
+    structure:  (M* + sum m_j) x'' + sum m_j beta_j r_j'' + c_s x' + k_s x = F
+    absorber j: beta_j x'' + r_j'' + 2 zeta_j omega_j r_j' + omega_j^2 r_j = 0
+
+Eliminating r_j in the frequency domain adds to the structure's dynamic
+stiffness
+
+    -omega^2 m_j T_j(omega),   T_j = 1 + beta_j^2 omega^2 / D_j(omega),
+    D_j = omega_j^2 - omega^2 + 2 i zeta_j omega_j omega,
+
+and r_j / x = beta_j omega^2 / D_j.
+
+* A translational or pendulum TMD is beta = 1: T = (omega_j^2 + 2 i zeta_j
+  omega_j omega) / D_j, and r is its stroke relative to the structure.
+* A tuned liquid column damper is beta = alpha = B/L (horizontal over total
+  liquid length) and r is the liquid displacement along the column: the
+  participating mass is alpha^2 m_l and (1 - alpha^2) m_l moves rigidly.
+* A sloshing tank represented by a sloshing mass m_1 of a total water mass m_w
+  is beta^2 = m_1 / m_w.
+
+The damping ratio zeta_j is referred to the absorber's own frequency omega_j
+(c_j = 2 zeta_j m_j omega_j for a TMD), not to the structure's.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+
+@dataclass(frozen=True)
+class Absorbers:
+    """A batch of absorber sets, one set per design, as broadcastable arrays.
+
+    Every field has shape ``batch_shape + (n_absorbers,)``; ``n_absorbers`` may
+    be zero (the bare structure).
+
+    Parameters
+    ----------
+    mass_kg : array
+        Total mass m_j of each absorber [kg] (zero is allowed: an unused
+        candidate in a bank).
+    frequency_hz : array
+        Absorber's own natural frequency f_j [Hz].
+    damping_ratio : array
+        Damping ratio zeta_j referred to f_j [-].
+    coupling : array
+        beta_j in (0, 1] [-]; 1 for a TMD.
+    """
+
+    mass_kg: np.ndarray
+    frequency_hz: np.ndarray
+    damping_ratio: np.ndarray
+    coupling: np.ndarray
+
+    def __post_init__(self):
+        arrays = np.broadcast_arrays(
+            *(np.asarray(a, dtype=float) for a in
+              (self.mass_kg, self.frequency_hz, self.damping_ratio, self.coupling))
+        )
+        if arrays[0].ndim == 0:
+            raise ValueError("absorber arrays need a last axis that counts the absorbers")
+        for name, value in zip(("mass_kg", "frequency_hz", "damping_ratio", "coupling"),
+                               arrays, strict=True):
+            object.__setattr__(self, name, value)
+
+    @property
+    def batch_shape(self) -> tuple[int, ...]:
+        return self.mass_kg.shape[:-1]
+
+    @property
+    def count(self) -> int:
+        return self.mass_kg.shape[-1]
+
+    @classmethod
+    def none(cls, batch_shape: tuple[int, ...] = ()) -> Absorbers:
+        """No absorber at all: the bare structure."""
+        empty = np.zeros(batch_shape + (0,))
+        return cls(empty, empty, empty, empty)
+
+    @classmethod
+    def tuned_masses(cls, mass_kg, frequency_hz, damping_ratio) -> Absorbers:
+        """Translational TMDs (coupling 1); arrays already carry the absorber axis."""
+        mass = np.asarray(mass_kg, dtype=float)
+        return cls(mass, frequency_hz, damping_ratio, np.ones_like(mass))
+
+    def take(self, index) -> Absorbers:
+        """The designs selected by ``index`` along the batch axes."""
+        return Absorbers(self.mass_kg[index], self.frequency_hz[index],
+                         self.damping_ratio[index], self.coupling[index])
+
+
+def single_tmd(structure_frequency_hz, modal_mass_kg, mass_ratio, frequency_ratio,
+               damping_ratio) -> Absorbers:
+    """One translational TMD per design from its non-dimensional parameters.
+
+    Parameters
+    ----------
+    structure_frequency_hz : float or array
+        f_s [Hz].
+    modal_mass_kg : float or array
+        M* [kg], mode shape = 1 at the damper.
+    mass_ratio : float or array
+        mu = m_d / M* [-].
+    frequency_ratio : float or array
+        f_d / f_s [-].
+    damping_ratio : float or array
+        zeta_d, referred to the damper's own frequency [-].
+
+    Returns
+    -------
+    Absorbers
+        Batch shape = the broadcast shape of the inputs, one absorber each.
+    """
+    mu, ratio, zeta, fs, mass = np.broadcast_arrays(
+        *(np.asarray(v, dtype=float) for v in
+          (mass_ratio, frequency_ratio, damping_ratio, structure_frequency_hz, modal_mass_kg))
+    )
+    return Absorbers.tuned_masses((mu * mass)[..., None], (ratio * fs)[..., None],
+                                  zeta[..., None])
