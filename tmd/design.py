@@ -1,0 +1,326 @@
+"""Sizing a single translational TMD under the actual modal force spectrum.
+
+Two jobs:
+
+* :func:`tune` - at a fixed mass ratio, the frequency ratio and damping ratio
+  that minimise the peak (or rms) acceleration or displacement, optionally
+  with the peak stroke held to a limit as a constraint of the tuning;
+* :func:`least_mass` - the smallest mass ratio whose best tuning meets a
+  peak-acceleration target, with the stroke limit inside the tuning.
+
+The tuning starts from Warburton's (1982) closed form and is refined with
+SLSQP (``scipy.optimize.minimize``) in (f_d/f_s, ln zeta_d); gradients come
+from central differences evaluated as one batch of designs. The mass search
+is Brent's method (``scipy.optimize.brentq``) on best_peak(mu) / target - 1.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+from scipy.optimize import brentq, minimize
+
+from tmd.dampers.absorber import Absorbers, single_tmd
+from tmd.dampers.tmd import TunedMassDamper, warburton_white_force_tuning
+from tmd.performance import assess, effective_damping_ratio
+from tmd.spectra import ForceSpectrum
+from tmd.structure import Mode
+
+OBJECTIVES = ("acceleration", "displacement")
+STATISTICS = ("peak", "rms")
+FREQUENCY_RATIO_BOUNDS = (0.5, 1.5)
+DAMPING_RATIO_BOUNDS = (1e-3, 0.6)
+_STEP = 1e-6  # central-difference step in (f_d/f_s, ln zeta_d)
+
+
+class DesignError(RuntimeError):
+    """The optimiser failed numerically (maps to exit code 1)."""
+
+
+@dataclass(frozen=True)
+class LoadCase:
+    """One mode under one load, with the reporting conventions.
+
+    Parameters
+    ----------
+    mode : Mode
+        The structure's mode (mode shape = 1 at the damper).
+    spectrum : ForceSpectrum
+        One-sided modal force PSD [N^2/Hz].
+    duration_s : float
+        Averaging duration T for peak factors [s].
+    shape_factor : float
+        phi(z_eval), the mode shape where acceleration is judged [-].
+    """
+
+    mode: Mode
+    spectrum: ForceSpectrum
+    duration_s: float = 600.0
+    shape_factor: float = 1.0
+
+    def assess(self, absorbers, **kw):
+        m = self.mode
+        return assess(m.frequency_hz, m.modal_mass_kg, m.damping_ratio, absorbers,
+                      self.spectrum, self.duration_s, shape_factor=self.shape_factor, **kw)
+
+
+@dataclass(frozen=True)
+class BareResponse:
+    """The building without a damper."""
+
+    sigma_acceleration_m_s2: float
+    peak_acceleration_m_s2: float
+    peak_factor: float
+    upcrossing_hz: float
+    sigma_displacement_m: float
+
+
+@dataclass(frozen=True)
+class TmdDesign:
+    """A TMD with every number its specification needs (SI units)."""
+
+    mass_ratio: float
+    mass_kg: float
+    frequency_ratio: float
+    frequency_hz: float
+    damping_ratio: float
+    stiffness_n_per_m: float
+    damping_n_s_per_m: float
+    sigma_acceleration_m_s2: float
+    peak_acceleration_m_s2: float
+    peak_factor: float
+    sigma_stroke_m: float
+    peak_stroke_m: float
+    peak_damper_force_n: float
+    sigma_displacement_m: float
+    effective_damping_ratio: float
+    added_damping_ratio: float
+    meets_target: bool | None
+
+    @property
+    def damper(self) -> TunedMassDamper:
+        return TunedMassDamper(self.mass_ratio, self.frequency_ratio, self.damping_ratio)
+
+
+@dataclass(frozen=True)
+class Tuning:
+    frequency_ratio: float
+    damping_ratio: float
+    value: float  # the objective at the optimum [m/s^2 or m]
+    peak_stroke_m: float
+    stroke_limited: bool
+
+
+@dataclass(frozen=True)
+class Sizing:
+    """Outcome of the least-mass search.
+
+    ``governed_by`` is "target" (the least mass meets the target exactly),
+    "stroke" (the stroke limit decides the least mass or the best reachable),
+    "mass" (even max_mass_ratio cannot reach the target) or "bare" (the bare
+    building meets the target, no damper needed).
+    """
+
+    design: TmdDesign | None
+    meets_target: bool
+    governed_by: str
+    message: str
+
+
+def bare_response(case: LoadCase) -> BareResponse:
+    """Responses of the building without a damper."""
+    a = case.assess(Absorbers.none())
+    return BareResponse(float(a.sigma_acceleration_m_s2), float(a.peak_acceleration_m_s2),
+                        float(a.peak_factor), float(a.upcrossing_hz),
+                        float(a.sigma_displacement_m))
+
+
+def evaluate_tmd(case: LoadCase, damper: TunedMassDamper,
+                 target_peak_m_s2: float | None = None) -> TmdDesign:
+    """Every response of one given TMD (e.g. a proposed or as-built damper)."""
+    m = case.mode
+    a = case.assess(damper.absorbers(m), warn=True)
+    modal_sigma = float(a.sigma_acceleration_m_s2) / case.shape_factor
+    zeta_eff = float(effective_damping_ratio(m.frequency_hz, m.modal_mass_kg, modal_sigma,
+                                             case.spectrum))
+    peak = float(a.peak_acceleration_m_s2)
+    return TmdDesign(
+        mass_ratio=damper.mass_ratio, mass_kg=damper.mass_kg(m),
+        frequency_ratio=damper.frequency_ratio, frequency_hz=damper.frequency_hz(m),
+        damping_ratio=damper.damping_ratio, stiffness_n_per_m=damper.stiffness_n_per_m(m),
+        damping_n_s_per_m=damper.damping_n_s_per_m(m),
+        sigma_acceleration_m_s2=float(a.sigma_acceleration_m_s2), peak_acceleration_m_s2=peak,
+        peak_factor=float(a.peak_factor), sigma_stroke_m=float(a.sigma_stroke_m[0]),
+        peak_stroke_m=float(a.peak_stroke_m[0]), peak_damper_force_n=float(a.peak_damper_force_n),
+        sigma_displacement_m=float(a.sigma_displacement_m), effective_damping_ratio=zeta_eff,
+        added_damping_ratio=zeta_eff - m.damping_ratio,
+        meets_target=None if target_peak_m_s2 is None else bool(peak <= target_peak_m_s2),
+    )
+
+
+class _TuningProblem:
+    """Objective and stroke constraint with batched central-difference gradients."""
+
+    def __init__(self, case, mass_ratio, objective, statistic, max_stroke_m):
+        if objective not in OBJECTIVES:
+            raise ValueError(f"objective must be one of {OBJECTIVES}, got {objective!r}")
+        if statistic not in STATISTICS:
+            raise ValueError(f"statistic must be one of {STATISTICS}, got {statistic!r}")
+        self.case, self.mu = case, mass_ratio
+        self.objective, self.statistic, self.max_stroke = objective, statistic, max_stroke_m
+        self._x = None
+
+    def _measure(self, a):
+        if self.objective == "acceleration":
+            return a.peak_acceleration_m_s2 if self.statistic == "peak" else a.sigma_acceleration_m_s2
+        return a.peak_displacement_m if self.statistic == "peak" else a.sigma_displacement_m
+
+    def evaluate(self, x):
+        x = np.asarray(x, float)
+        if self._x is not None and np.array_equal(x, self._x):
+            return
+        pts = np.vstack([x, x + _STEP * np.eye(2), x - _STEP * np.eye(2)])
+        m = self.case.mode
+        a = self.case.assess(single_tmd(m.frequency_hz, m.modal_mass_kg, self.mu, pts[:, 0],
+                                        np.exp(pts[:, 1])))
+        value = np.log(self._measure(a))
+        stroke = a.peak_stroke_m[:, 0]
+        self._x = x
+        self.value, self.stroke = value[0], stroke[0]
+        self.grad = (value[1:3] - value[3:5]) / (2 * _STEP)
+        self.stroke_grad = (stroke[1:3] - stroke[3:5]) / (2 * _STEP)
+
+    def fun(self, x):
+        self.evaluate(x)
+        return self.value
+
+    def jac(self, x):
+        self.evaluate(x)
+        return self.grad
+
+    def constraint(self, x):
+        self.evaluate(x)
+        return np.array([1.0 - self.stroke / self.max_stroke])
+
+    def constraint_jac(self, x):
+        self.evaluate(x)
+        return -self.stroke_grad[None, :] / self.max_stroke
+
+
+def tune(case: LoadCase, mass_ratio: float, *, objective: str = "acceleration",
+         statistic: str = "peak", max_stroke_m: float | None = None) -> Tuning:
+    """Best frequency and damping ratio of a TMD of given mass ratio.
+
+    Parameters
+    ----------
+    case : LoadCase
+    mass_ratio : float
+        mu = m_d / M* [-].
+    objective : {"acceleration", "displacement"}
+        The structure response to minimise.
+    statistic : {"peak", "rms"}
+        Minimise the peak (g sigma, the default) or the rms value.
+    max_stroke_m : float, optional
+        Upper limit on the peak stroke [m], a constraint of the tuning.
+
+    Returns
+    -------
+    Tuning
+
+    Raises
+    ------
+    DesignError
+        If SLSQP fails from every start.
+    """
+    problem = _TuningProblem(case, mass_ratio, objective, statistic, max_stroke_m)
+    ratio0, zeta0 = warburton_white_force_tuning(mass_ratio)
+    zeta0 = float(np.clip(zeta0, *DAMPING_RATIO_BOUNDS))
+    bounds = [FREQUENCY_RATIO_BOUNDS, tuple(np.log(DAMPING_RATIO_BOUNDS))]
+    constraints = []
+    starts = [(ratio0, math.log(zeta0))]
+    if max_stroke_m is not None:
+        constraints = [{"type": "ineq", "fun": problem.constraint, "jac": problem.constraint_jac}]
+        starts.append((ratio0, math.log(min(3 * zeta0, 0.3))))
+    best = None
+    for start in starts:
+        res = minimize(problem.fun, np.array(start), jac=problem.jac, method="SLSQP",
+                       bounds=bounds, constraints=constraints,
+                       options={"ftol": 1e-13, "maxiter": 200})
+        problem.evaluate(res.x)
+        feasible = max_stroke_m is None or problem.stroke <= max_stroke_m * (1 + 1e-6)
+        if not np.isfinite(problem.value):
+            continue
+        candidate = (not feasible, problem.value, res.x, problem.stroke)
+        if best is None or candidate[:2] < best[:2]:
+            best = candidate
+    if best is None:
+        raise DesignError(f"the tuning optimiser failed at mass ratio {mass_ratio:g}")
+    infeasible, value, x, stroke = best
+    limited = max_stroke_m is not None and stroke >= max_stroke_m * (1 - 1e-4)
+    if infeasible:
+        value = np.inf
+    return Tuning(float(x[0]), float(math.exp(x[1])), float(math.exp(value)), float(stroke),
+                  bool(limited))
+
+
+def least_mass(case: LoadCase, target_peak_m_s2: float, *, max_mass_ratio: float,
+               max_stroke_m: float | None = None, min_mass_ratio: float = 1e-4) -> Sizing:
+    """Smallest mass ratio whose best tuning meets the peak-acceleration target.
+
+    Parameters
+    ----------
+    case : LoadCase
+    target_peak_m_s2 : float
+        Peak acceleration target at the evaluation height [m/s^2].
+    max_mass_ratio : float
+        Largest mass ratio considered [-].
+    max_stroke_m : float, optional
+        Peak stroke limit [m], a constraint inside every tuning.
+
+    Returns
+    -------
+    Sizing
+        At a "target"-governed answer |peak / target - 1| < 1e-4.
+    """
+    bare = bare_response(case)
+    if bare.peak_acceleration_m_s2 <= target_peak_m_s2:
+        return Sizing(None, True, "bare", (
+            f"the bare building's peak acceleration {bare.peak_acceleration_m_s2:.4g} m/s^2 "
+            f"already meets the target {target_peak_m_s2:.4g} m/s^2: no damper is needed"))
+
+    def best(mu):
+        return tune(case, mu, max_stroke_m=max_stroke_m)
+
+    top = best(max_mass_ratio)
+    if top.value > target_peak_m_s2:
+        limit = "stroke" if top.stroke_limited or not np.isfinite(top.value) else "mass"
+        design = _design_at(case, max_mass_ratio, top, target_peak_m_s2)
+        reason = (f"the peak stroke limit of {max_stroke_m:g} m" if limit == "stroke"
+                  else f"the largest mass ratio allowed, {max_mass_ratio:g}")
+        return Sizing(design, False, limit, (
+            f"the target {target_peak_m_s2:.4g} m/s^2 cannot be met: the best achievable peak "
+            f"acceleration is {design.peak_acceleration_m_s2:.4g} m/s^2 at mass ratio "
+            f"{max_mass_ratio:g}, limited by {reason}"))
+
+    def gap(mu):
+        value = best(mu).value
+        return (value / target_peak_m_s2 - 1.0) if np.isfinite(value) else 1.0
+
+    mu = brentq(gap, min_mass_ratio, max_mass_ratio, xtol=1e-12, rtol=1e-10, maxiter=200)
+    tuning = best(mu)
+    design = _design_at(case, mu, tuning, target_peak_m_s2)
+    if abs(tuning.value / target_peak_m_s2 - 1.0) < 1e-4:
+        governed = "stroke" if tuning.stroke_limited else "target"
+    else:
+        # The search landed where the stroke limit first becomes feasible.
+        governed = "stroke"
+    return Sizing(design, True, governed, (
+        f"least mass ratio {mu:.5g} meets the target {target_peak_m_s2:.4g} m/s^2"
+        + (" with the stroke limit active" if tuning.stroke_limited else "")))
+
+
+def _design_at(case, mu, tuning: Tuning, target):
+    return evaluate_tmd(case, TunedMassDamper(mu, tuning.frequency_ratio, tuning.damping_ratio),
+                        target)

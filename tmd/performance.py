@@ -1,0 +1,152 @@
+"""What an engineer reads off a design: rms and peak responses, effective damping.
+
+Peaks are g sigma with Davenport's peak factor from each response's own
+up-crossing rate (:mod:`tmd.peak`). Accelerations can be reported at another
+height than the damper's by the mode-shape value there (``shape_factor``:
+phi(z_eval) with phi = 1 at the damper).
+"""
+
+from __future__ import annotations
+
+import warnings
+from dataclasses import dataclass
+
+import numpy as np
+from scipy.optimize.elementwise import find_root
+
+from tmd.dampers.absorber import Absorbers
+from tmd.peak import davenport_peak_factor, peak_factor_is_held
+from tmd.response import TOP_DECADE_WARNING, Moments, spectral_response
+from tmd.spectra import ForceSpectrum
+
+
+class UpperEdgeWarning(UserWarning):
+    """Much of a response moment comes from the top decade of the load spectrum."""
+
+
+@dataclass(frozen=True)
+class Assessment:
+    """Responses of a batch of designs (arrays over the batch).
+
+    Accelerations are at the evaluation height [m/s^2]; displacement at the
+    damper level [m]; strokes per absorber (last axis) [m]; force is the
+    total the absorbers put on the structure [N].
+    """
+
+    sigma_displacement_m: np.ndarray
+    peak_displacement_m: np.ndarray
+    sigma_acceleration_m_s2: np.ndarray
+    peak_acceleration_m_s2: np.ndarray
+    peak_factor: np.ndarray
+    upcrossing_hz: np.ndarray
+    sigma_stroke_m: np.ndarray
+    peak_stroke_m: np.ndarray
+    sigma_force_n: np.ndarray
+    peak_damper_force_n: np.ndarray
+    top_decade_share_m0: np.ndarray
+    top_decade_share_m2: np.ndarray
+    peak_factor_held: np.ndarray
+
+
+def _peak(moments: Moments, duration_s):
+    with np.errstate(invalid="ignore", divide="ignore"):
+        nu = np.nan_to_num(moments.upcrossing_hz)
+    return davenport_peak_factor(nu, duration_s) * moments.sigma, nu
+
+
+def assess(frequency_hz, modal_mass_kg, damping_ratio, absorbers: Absorbers,
+           spectrum: ForceSpectrum, duration_s: float, *, shape_factor: float = 1.0,
+           warn: bool = False) -> Assessment:
+    """Rms and peak responses of a batch of designs.
+
+    Parameters
+    ----------
+    frequency_hz, modal_mass_kg, damping_ratio : float or array
+        The structure's mode: f_s [Hz], M* [kg] (mode shape = 1 at the
+        damper), zeta_s [-].
+    absorbers : Absorbers
+        The absorbers of each design.
+    spectrum : ForceSpectrum
+        One-sided modal force PSD [N^2/Hz].
+    duration_s : float
+        Averaging duration T for the peak factor [s].
+    shape_factor : float
+        Mode-shape value phi(z_eval) at the height where acceleration is
+        reported [-] (1 at the damper level).
+    warn : bool
+        Emit :class:`UpperEdgeWarning` when more than 1% of the
+        acceleration's m0 or m2 comes from the top decade of the load's range.
+    """
+    r = spectral_response(frequency_hz, modal_mass_kg, damping_ratio, absorbers, spectrum)
+    peak_a, nu_a = _peak(r.acceleration, duration_s)
+    peak_r, _ = _peak(r.stroke, duration_s)
+    peak_f, _ = _peak(r.force, duration_s)
+    peak_x, _ = _peak(r.displacement, duration_s)
+    share0, share2 = r.acceleration_top_decade
+    if warn and np.any(np.maximum(share0, share2) > TOP_DECADE_WARNING):
+        warnings.warn(
+            f"{100 * np.max(share2):.1f}% of the acceleration's second moment and "
+            f"{100 * np.max(share0):.1f}% of its variance come from the top decade of the load "
+            f"spectrum (up to {spectrum.f_max_hz:g} Hz); the up-crossing rate and peak factor "
+            "depend on where the spectrum is cut off",
+            UpperEdgeWarning, stacklevel=2)
+    return Assessment(
+        sigma_displacement_m=r.displacement.sigma,
+        peak_displacement_m=peak_x,
+        sigma_acceleration_m_s2=shape_factor * r.acceleration.sigma,
+        peak_acceleration_m_s2=shape_factor * peak_a,
+        peak_factor=davenport_peak_factor(nu_a, duration_s),
+        upcrossing_hz=nu_a,
+        sigma_stroke_m=r.stroke.sigma,
+        peak_stroke_m=peak_r,
+        sigma_force_n=r.force.sigma,
+        peak_damper_force_n=peak_f,
+        top_decade_share_m0=share0,
+        top_decade_share_m2=share2,
+        peak_factor_held=peak_factor_is_held(nu_a, duration_s),
+    )
+
+
+def bare_sigma_acceleration(frequency_hz, modal_mass_kg, damping_ratio, spectrum):
+    """Rms acceleration [m/s^2] of the bare mode (no absorber) at the damper level."""
+    zeta = np.asarray(damping_ratio, float)
+    none = Absorbers.none(np.broadcast_shapes(zeta.shape, np.shape(frequency_hz)))
+    return spectral_response(frequency_hz, modal_mass_kg, zeta, none, spectrum).acceleration.sigma
+
+
+def effective_damping_ratio(frequency_hz, modal_mass_kg, sigma_acceleration_m_s2, spectrum,
+                            *, bracket=(1e-5, 0.95)):
+    """Damping ratio at which the bare mode has a given rms acceleration.
+
+    Parameters
+    ----------
+    frequency_hz, modal_mass_kg : float or array
+        The structure's mode [Hz], [kg].
+    sigma_acceleration_m_s2 : float or array
+        Rms acceleration at the damper level of the damped structure [m/s^2].
+    spectrum : ForceSpectrum
+        The same load.
+
+    Returns
+    -------
+    array
+        zeta_eff [-] such that the bare structure with zeta_eff has the same
+        rms acceleration; NaN where no ratio inside ``bracket`` does.
+
+    Notes
+    -----
+    sigma_a of the bare mode decreases monotonically with its damping, so
+    the root is bracketed and found elementwise in log(zeta) by Chandrupatla's
+    method (``scipy.optimize.elementwise.find_root``).
+    """
+    target = np.asarray(sigma_acceleration_m_s2, float)
+    fs = np.broadcast_to(np.asarray(frequency_hz, float), target.shape)
+    mass = np.broadcast_to(np.asarray(modal_mass_kg, float), target.shape)
+
+    def gap(log_zeta, f, m, goal):
+        return np.log(bare_sigma_acceleration(f, m, np.exp(log_zeta), spectrum) / goal)
+
+    lo, hi = np.log(bracket[0]), np.log(bracket[1])
+    result = find_root(gap, (np.full(target.shape, lo), np.full(target.shape, hi)),
+                       args=(fs, mass, target), tolerances={"xatol": 1e-12, "xrtol": 1e-12})
+    return np.where(result.success, np.exp(result.x), np.nan)
