@@ -173,9 +173,10 @@ class _TuningProblem:
         self._x = None
 
     def _measure(self, a):
+        peak = self.statistic == "peak"
         if self.objective == "acceleration":
-            return a.peak_acceleration_m_s2 if self.statistic == "peak" else a.sigma_acceleration_m_s2
-        return a.peak_displacement_m if self.statistic == "peak" else a.sigma_displacement_m
+            return a.peak_acceleration_m_s2 if peak else a.sigma_acceleration_m_s2
+        return a.peak_displacement_m if peak else a.sigma_displacement_m
 
     def evaluate(self, x):
         x = np.asarray(x, float)
@@ -312,13 +313,15 @@ def least_mass(case: LoadCase, target_peak_m_s2: float, *, max_mass_ratio: float
     tuning = best(mu)
     design = _design_at(case, mu, tuning, target_peak_m_s2)
     if abs(tuning.value / target_peak_m_s2 - 1.0) < 1e-4:
-        governed = "stroke" if tuning.stroke_limited else "target"
-    else:
-        # The search landed where the stroke limit first becomes feasible.
-        governed = "stroke"
-    return Sizing(design, True, governed, (
-        f"least mass ratio {mu:.5g} meets the target {target_peak_m_s2:.4g} m/s^2"
-        + (" with the stroke limit active" if tuning.stroke_limited else "")))
+        return Sizing(design, True, "target", (
+            f"least mass ratio {mu:.5g} meets the target {target_peak_m_s2:.4g} m/s^2"
+            + (" with the stroke limit active" if tuning.stroke_limited else "")))
+    # Below this mass no tuning keeps the stroke within its limit: the stroke
+    # limit, not the acceleration target, sets the least mass.
+    return Sizing(design, True, "stroke", (
+        f"least mass ratio {mu:.5g} is set by the peak stroke limit of {max_stroke_m:g} m; "
+        f"its peak acceleration {design.peak_acceleration_m_s2:.4g} m/s^2 is below the target "
+        f"{target_peak_m_s2:.4g} m/s^2"))
 
 
 def _design_at(case, mu, tuning: Tuning, target):

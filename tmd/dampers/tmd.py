@@ -62,7 +62,8 @@ class TunedMassDamper:
 
     def damping_n_s_per_m(self, mode: Mode) -> float:
         """Dashpot c_d = 2 zeta_d m_d (2 pi f_d) [N s/m]."""
-        return 2.0 * self.damping_ratio * self.mass_kg(mode) * 2.0 * math.pi * self.frequency_hz(mode)
+        omega_d = 2.0 * math.pi * self.frequency_hz(mode)
+        return 2.0 * self.damping_ratio * self.mass_kg(mode) * omega_d
 
     def absorbers(self, mode: Mode) -> Absorbers:
         """The engine's description of this damper on ``mode``."""
