@@ -311,7 +311,8 @@ class Site:
         if self.is_direct:
             shape = self._log(z) / self._log(self.reference_height_m)
             return factor * self.reference_mean_speed_m_s * shape
-        return factor * self.terrain_factor * self._log(z) * self.orography_factor * self.basic_speed_m_s
+        c_r = self.terrain_factor * self._log(z)
+        return factor * c_r * self.orography_factor * self.basic_speed_m_s
 
     def turbulence_intensity(self, height_m):
         """Turbulence intensity I_v(z) = sigma_u / v_m(z) [-] (EN 1991-1-4 eq. 4.7).
@@ -320,7 +321,8 @@ class Site:
         """
         z = _check_heights(height_m)
         if self.is_direct:
-            return self.reference_turbulence_intensity * self._log(self.reference_height_m) / self._log(z)
+            ratio = self._log(self.reference_height_m) / self._log(z)
+            return self.reference_turbulence_intensity * ratio
         return self.turbulence_factor / (self.orography_factor * self._log(z))
 
     def sigma_u(self, return_period_years=50.0):
