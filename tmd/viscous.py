@@ -1,0 +1,219 @@
+"""Added viscous damping: dampers built into the structure instead of a moving mass.
+
+Linear viscous dampers between points of the structure add modal damping.
+With the mode shape = 1 at the reference (damper) level, let each damper's
+deformation be d = phi_d x per unit modal displacement x (phi_d, stated by
+the user from the installation: e.g. the storey drift per unit displacement
+at the reference level, times the brace's cosine). A damper c_d dissipates
+c_d (phi_d x')^2, the work of a modal dashpot c_d phi_d^2, so n such
+dampers add (virtual work on the modal coordinate)
+
+    c_add = n c_d phi_d^2 = 2 zeta_add M* omega_s,  hence
+    c_d = 2 zeta_add M* omega_s / (n phi_d^2).
+
+The supplemental damping ratio needed is found on the same engine: the
+bare mode's peak acceleration falls monotonically with its damping ratio, so
+zeta_total with peak(zeta_total) = target is bracketed and found by Brent's
+method (``scipy.optimize.brentq``); zeta_add = zeta_total - zeta_s. This
+assumes the dampers leave the mode shape unchanged (classical damping), a
+common preliminary-design simplification.
+
+References
+----------
+Constantinou, M. C. and Symans, M. D. (1993). Seismic response of structures
+with supplemental damping. The Structural Design of Tall Buildings 2, 77-92
+(modal damping from the energy dissipated by linear viscous dampers; from memory).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+from scipy.optimize import brentq
+
+from tmd.dampers.absorber import Absorbers
+from tmd.design import LoadCase
+from tmd.peak import davenport_peak_factor
+from tmd.performance import assess
+from tmd.response import spectral_response
+
+TWO_PI = 2.0 * math.pi
+MAX_DAMPING_RATIO = 0.5
+
+
+@dataclass(frozen=True)
+class ViscousSettings:
+    """The installation of the dampers (case keys under [options]).
+
+    Parameters
+    ----------
+    deformation_per_modal_displacement : float
+        phi_d, damper deformation per unit modal displacement at the damper
+        (reference) level [-].
+    damper_count : int
+        Number n of identical dampers.
+    """
+
+    deformation_per_modal_displacement: float = 1.0
+    damper_count: int = 1
+
+    def __post_init__(self):
+        if not self.deformation_per_modal_displacement > 0:
+            raise ValueError("deformation_per_modal_displacement must be > 0")
+        if not (isinstance(self.damper_count, int) and self.damper_count >= 1):
+            raise ValueError("damper_count must be an integer >= 1")
+
+
+@dataclass(frozen=True)
+class ViscousDesign:
+    """Added damping that meets the target, and the dampers that give it (SI)."""
+
+    total_damping_ratio: float
+    added_damping_ratio: float
+    modal_damping_n_s_per_m: float
+    damper_constant_n_s_per_m: float
+    damper_count: int
+    deformation_per_modal_displacement: float
+    sigma_acceleration_m_s2: float
+    peak_acceleration_m_s2: float
+    peak_displacement_m: float
+    peak_damper_deformation_m: float
+    peak_modal_damping_force_n: float
+    peak_force_per_damper_n: float
+    meets_target: bool
+    message: str
+
+
+def size_added_damping(case: LoadCase, target_peak_m_s2: float, *,
+                       settings: ViscousSettings = ViscousSettings(),
+                       max_damping_ratio: float = MAX_DAMPING_RATIO) -> ViscousDesign:
+    """Supplemental modal damping that meets a peak-acceleration target.
+
+    Parameters
+    ----------
+    case : LoadCase
+    target_peak_m_s2 : float
+        Peak acceleration target at the evaluation height [m/s^2].
+    settings : ViscousSettings
+        phi_d and the number of dampers.
+    max_damping_ratio : float
+        Largest total modal damping ratio searched [-].
+
+    Returns
+    -------
+    ViscousDesign
+
+    Notes
+    -----
+    zeta_total solves peak_a(zeta_total) = target (brentq on the bare mode);
+    c_d = 2 zeta_add M* omega_s / (n phi_d^2). Peak velocity uses Davenport's
+    factor with nu_v = sqrt(m4 / m2) of the displacement spectrum; the force
+    per damper is c_d phi_d v_peak and the total modal force c_add v_peak.
+    """
+    m = case.mode
+
+    def peak(zeta):
+        return float(_assess_damped(case, zeta).peak_acceleration_m_s2)
+
+    zeta_s = m.damping_ratio
+    if peak(zeta_s) <= target_peak_m_s2:
+        total, met, message = zeta_s, True, "the bare building already meets the target"
+    elif peak(max_damping_ratio) > target_peak_m_s2:
+        total, met = max_damping_ratio, False
+        message = (f"the target {target_peak_m_s2:.4g} m/s^2 cannot be met with modal damping "
+                   f"up to {max_damping_ratio:g}")
+    else:
+        total = brentq(lambda z: peak(z) / target_peak_m_s2 - 1.0, zeta_s, max_damping_ratio,
+                       xtol=1e-12, rtol=1e-12)
+        met = True
+        message = (f"a total modal damping ratio of {total:.4g} (added {total - zeta_s:.4g}) "
+                   f"meets the target {target_peak_m_s2:.4g} m/s^2")
+    return _design(case, total, settings, met, message)
+
+
+def _design(case, total, settings, met, message):
+    m = case.mode
+    added = total - m.damping_ratio
+    phi, n = settings.deformation_per_modal_displacement, settings.damper_count
+    c_add = 2.0 * added * m.modal_mass_kg * TWO_PI * m.frequency_hz
+    c_d = float(damper_constant_n_s_per_m(added, m.frequency_hz, m.modal_mass_kg, phi, n))
+    a = _assess_damped(case, total)
+    v_peak = peak_velocity_m_s(case, total)
+    return ViscousDesign(
+        total_damping_ratio=float(total), added_damping_ratio=float(added),
+        modal_damping_n_s_per_m=float(c_add), damper_constant_n_s_per_m=c_d, damper_count=n,
+        deformation_per_modal_displacement=phi,
+        sigma_acceleration_m_s2=float(a.sigma_acceleration_m_s2),
+        peak_acceleration_m_s2=float(a.peak_acceleration_m_s2),
+        peak_displacement_m=float(a.peak_displacement_m),
+        peak_damper_deformation_m=phi * float(a.peak_displacement_m),
+        peak_modal_damping_force_n=float(c_add * v_peak),
+        peak_force_per_damper_n=float(c_d * phi * v_peak), meets_target=bool(met),
+        message=message)
+
+
+def _assess_damped(case: LoadCase, damping_ratio, frequency_hz=None):
+    m = case.mode
+    fs = m.frequency_hz if frequency_hz is None else frequency_hz
+    zeta = np.asarray(damping_ratio, float)
+    return assess(fs, m.modal_mass_kg, zeta, Absorbers.none(np.broadcast_shapes(
+        zeta.shape, np.shape(fs))), case.spectrum, case.duration_s,
+        shape_factor=case.shape_factor)
+
+
+def peak_acceleration_with_dashpot(case: LoadCase, added_damping_ratio: float, frequency_scale):
+    """Peak acceleration [m/s^2] with the added dashpot kept as the structure's frequency moves.
+
+    Notes
+    -----
+    With f_s -> s f_s, M* and zeta_s kept, the added dashpot c_add is fixed, so
+    its damping ratio becomes zeta_add / s.
+    """
+    s = np.asarray(frequency_scale, float)
+    zeta = case.mode.damping_ratio + added_damping_ratio / s
+    return _assess_damped(case, zeta, s * case.mode.frequency_hz).peak_acceleration_m_s2
+
+
+def peak_velocity_m_s(case: LoadCase, damping_ratio: float) -> float:
+    """Expected peak modal velocity at the damper level [m/s] of the damped bare mode.
+
+    Notes
+    -----
+    sigma_v = 2 pi sqrt(m2_x); the engine's acceleration variance is
+    (2 pi)^4 m4_x, so nu_v = sqrt(m4_x / m2_x); peak = g(nu_v, T) sigma_v
+    (Davenport 1964).
+    """
+    m = case.mode
+    r = spectral_response(m.frequency_hz, m.modal_mass_kg, damping_ratio, Absorbers.none(),
+                          case.spectrum)
+    m2 = float(r.displacement.m2)
+    m4 = float(r.acceleration.m0) / TWO_PI**4
+    sigma_v = TWO_PI * math.sqrt(m2)
+    return float(davenport_peak_factor(math.sqrt(m4 / m2), case.duration_s)) * sigma_v
+
+
+def damper_constant_n_s_per_m(added_damping_ratio, frequency_hz, modal_mass_kg,
+                              deformation_per_modal_displacement=1.0, damper_count=1):
+    """Linear damper constant c_d [N s/m] giving an added modal damping ratio.
+
+    Parameters
+    ----------
+    added_damping_ratio : float or array
+        zeta_add [-].
+    frequency_hz, modal_mass_kg : float
+        The mode (M* with the mode shape = 1 at the reference level).
+    deformation_per_modal_displacement : float
+        phi_d [-].
+    damper_count : int
+        n identical dampers.
+
+    Notes
+    -----
+    c_d = 2 zeta_add M* omega_s / (n phi_d^2) (module notes).
+    """
+    omega = TWO_PI * np.asarray(frequency_hz, float)
+    return (2.0 * np.asarray(added_damping_ratio, float) * modal_mass_kg * omega
+            / (damper_count * deformation_per_modal_displacement**2))
+
