@@ -144,7 +144,7 @@ def _check_heights(height_m, minimum=0.0, maximum=MAXIMUM_HEIGHT_M, name="height
     if np.any(~np.isfinite(z)) or np.any(z <= minimum) or np.any(z > maximum):
         bad = z.flat[int(np.flatnonzero(~((z > minimum) & (z <= maximum)))[0])]
         raise ValueError(
-            f"{name} = {bad!r} m is outside the wind profile's range; allowed "
+            f"{name} = {float(bad)!r} m is outside the wind profile's range; allowed "
             f"{minimum:g} < z <= {maximum:g} m (EN 1991-1-4 z_max)"
         )
     return z
