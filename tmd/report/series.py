@@ -1,0 +1,227 @@
+"""The arrays each report figure shows, recomputed from the library or read from results.
+
+Every function returns plain numpy arrays in SI units (frequencies in Hz), so
+that a figure can be checked against them. Responses are those of the case's
+design load (:func:`tmd.jobs.load_case_of`), with acceleration at the
+evaluation height (the load case's shape factor).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from tmd.dampers.absorber import Absorbers, single_tmd
+from tmd.dampers.tmd import TunedMassDamper
+from tmd.design import LoadCase, tune
+from tmd.performance import assess
+from tmd.report.comfort import ComfortLimit
+from tmd.response import transfer_functions
+
+RESPONSE_SPAN = 3.0  # response figures cover f_s / 3 .. 3 f_s
+RESPONSE_POINTS = 2001  # log step 0.1 %: well below the half-power width at zeta = 0.5 %
+SPECTRUM_SPAN = 100.0  # an unbounded spectrum is drawn over f_s / 100 .. 100 f_s
+SPECTRUM_POINTS = 600
+MASS_RATIO_POINTS = 15
+MIN_MASS_RATIO = 0.002
+
+
+@dataclass(frozen=True)
+class ResponseCurves:
+    """Bare and damped curves on one frequency grid (damped is None without a damper)."""
+
+    frequency_hz: np.ndarray
+    bare: np.ndarray
+    damped: np.ndarray | None
+
+
+@dataclass(frozen=True)
+class MassRatioStudy:
+    """Best-tuned TMDs over a range of mass ratios (same objective and stroke limit as the case)."""
+
+    mass_ratio: np.ndarray
+    peak_acceleration_m_s2: np.ndarray
+    peak_stroke_m: np.ndarray
+
+
+@dataclass(frozen=True)
+class Sweep:
+    """Peak acceleration against the structure frequency factor s (f_s -> s f_s)."""
+
+    structure_frequency_factor: np.ndarray
+    peak_acceleration_m_s2: np.ndarray
+
+
+@dataclass(frozen=True)
+class ComfortResponse:
+    """Peak accelerations of one return period at the building frequency."""
+
+    return_period_years: float | None
+    frequency_hz: float
+    bare_peak_m_s2: float
+    damped_peak_m_s2: float | None
+
+
+def damper_of(design: dict) -> TunedMassDamper:
+    """The TMD of a results.json ``design`` block."""
+    return TunedMassDamper(design["mass_ratio"], design["frequency_ratio"],
+                           design["damping_ratio"])
+
+
+def response_frequencies(structure_frequency_hz: float) -> np.ndarray:
+    """Log-spaced grid around the mode for the response figures [Hz]."""
+    return np.geomspace(structure_frequency_hz / RESPONSE_SPAN,
+                        structure_frequency_hz * RESPONSE_SPAN, RESPONSE_POINTS)
+
+
+def force_spectrum_curve(load: LoadCase) -> tuple[np.ndarray, np.ndarray]:
+    """The modal force PSD S_F(f) [N^2/Hz] over its support (or f_s/100 .. 100 f_s).
+
+    Returns
+    -------
+    frequency_hz, psd_n2_per_hz : ndarray
+    """
+    fs = load.mode.frequency_hz
+    lo = load.spectrum.f_min_hz if load.spectrum.f_min_hz > 0 else fs / SPECTRUM_SPAN
+    hi = load.spectrum.f_max_hz if np.isfinite(load.spectrum.f_max_hz) else fs * SPECTRUM_SPAN
+    f = np.geomspace(lo, hi, SPECTRUM_POINTS)
+    return f, np.asarray(load.spectrum(f), dtype=float)
+
+
+def _acceleration_transfer(load: LoadCase, design: dict | None, f: np.ndarray):
+    m = load.mode
+    h_bare = transfer_functions(f, m.frequency_hz, m.modal_mass_kg, m.damping_ratio,
+                                Absorbers.none())["acceleration"]
+    h_damped = None
+    if design is not None:
+        h_damped = transfer_functions(f, m.frequency_hz, m.modal_mass_kg, m.damping_ratio,
+                                      damper_of(design).absorbers(m))["acceleration"]
+    return load.shape_factor * h_bare, None if h_damped is None else load.shape_factor * h_damped
+
+
+def acceleration_frequency_response(load: LoadCase, design: dict | None) -> ResponseCurves:
+    """|H_a(f)| [m/s^2 per N] at the evaluation height, bare and damped.
+
+    Notes
+    -----
+    H_a = -(2 pi f)^2 H_x phi(z_eval), H_x the modal displacement per unit
+    modal force from :func:`tmd.response.transfer_functions`.
+    """
+    f = response_frequencies(load.mode.frequency_hz)
+    bare, damped = _acceleration_transfer(load, design, f)
+    return ResponseCurves(f, np.abs(bare), None if damped is None else np.abs(damped))
+
+
+def acceleration_psd(load: LoadCase, design: dict | None) -> ResponseCurves:
+    """One-sided acceleration PSD S_a(f) = |H_a(f)|^2 S_F(f) [(m/s^2)^2/Hz], bare and damped."""
+    f = response_frequencies(load.mode.frequency_hz)
+    bare, damped = _acceleration_transfer(load, design, f)
+    s_f = np.asarray(load.spectrum(f), dtype=float)
+    return ResponseCurves(f, np.abs(bare) ** 2 * s_f,
+                          None if damped is None else np.abs(damped) ** 2 * s_f)
+
+
+def mass_ratio_grid(max_mass_ratio: float, design_mass_ratio: float | None) -> np.ndarray:
+    """Log-spaced mass ratios up to the case's maximum, with the chosen design's included."""
+    grid = np.geomspace(min(MIN_MASS_RATIO, max_mass_ratio / 10), max_mass_ratio,
+                        MASS_RATIO_POINTS)
+    if design_mass_ratio is not None:
+        grid = np.union1d(grid, [design_mass_ratio])
+    return grid
+
+
+def mass_ratio_study(load: LoadCase, mass_ratio: np.ndarray, *, objective: str,
+                     max_stroke_m: float | None) -> MassRatioStudy:
+    """Peak acceleration and stroke of the best tuning at each mass ratio.
+
+    Each mass ratio is tuned with :func:`tmd.design.tune` (the case's
+    objective and stroke limit); the tuned designs are then assessed in one
+    batched call of the engine.
+    """
+    tunings = [tune(load, float(mu), objective=objective, max_stroke_m=max_stroke_m)
+               for mu in mass_ratio]
+    ratio = np.array([t.frequency_ratio for t in tunings])
+    zeta = np.array([t.damping_ratio for t in tunings])
+    m = load.mode
+    a = load.assess(single_tmd(m.frequency_hz, m.modal_mass_kg, mass_ratio, ratio, zeta))
+    return MassRatioStudy(np.asarray(mass_ratio, float), np.asarray(a.peak_acceleration_m_s2),
+                          np.asarray(a.peak_stroke_m[:, 0]))
+
+
+def sweep_from_results(rows: list[dict]) -> Sweep:
+    """A results.json ``sweep`` / ``sweep_bare`` list as arrays, sorted by factor."""
+    s = np.array([r["structure_frequency_factor"] for r in rows], dtype=float)
+    a = np.array([r["peak_acceleration_m_s2"] for r in rows], dtype=float)
+    order = np.argsort(s)
+    return Sweep(s[order], a[order])
+
+
+def detuned_sweep(load: LoadCase, design: dict, factors: np.ndarray) -> Sweep:
+    """Peak acceleration of a fixed damper as the structure frequency is scaled by s.
+
+    The structure keeps its modal mass and damping ratio (its stiffness scales
+    by s^2); the damper keeps its absolute mass, frequency and damping ratio,
+    hence its spring and dashpot. One batched engine call over all s.
+    """
+    s = np.asarray(factors, dtype=float)
+    shape = s.shape + (1,)
+    absorbers = Absorbers.tuned_masses(np.full(shape, design["mass_kg"]),
+                                       np.full(shape, design["frequency_hz"]),
+                                       np.full(shape, design["damping_ratio"]))
+    m = load.mode
+    a = assess(s * m.frequency_hz, m.modal_mass_kg, m.damping_ratio, absorbers, load.spectrum,
+               load.duration_s, shape_factor=load.shape_factor)
+    return Sweep(s, np.asarray(a.peak_acceleration_m_s2, dtype=float))
+
+
+def entry_peak(entry: dict, group: str) -> float | None:
+    """Peak acceleration of ``group`` ("bare" or "design") in a ``by_return_period`` entry.
+
+    Accepts the nested form ``entry[group]["peak_acceleration_m_s2"]`` and the
+    flat form ``entry[group + "_peak_acceleration_m_s2"]``.
+    """
+    nested = entry.get(group)
+    if isinstance(nested, dict) and nested.get("peak_acceleration_m_s2") is not None:
+        return float(nested["peak_acceleration_m_s2"])
+    flat = entry.get(f"{group}_peak_acceleration_m_s2")
+    return None if flat is None else float(flat)
+
+
+def design_return_period(results: dict) -> float | None:
+    """Return period [years] of the design load, when the case states it."""
+    stated = results.get("target", {}).get("return_period_years")
+    if stated is None:
+        stated = results.get("case", {}).get("inputs", {}).get("target", {}).get(
+            "return_period_years")
+    return None if stated is None else float(stated)
+
+
+def comfort_responses(results: dict, structure_frequency_hz: float) -> list[ComfortResponse]:
+    """Bare and damped peak accelerations per return period, for the comfort chart.
+
+    One entry per ``by_return_period`` entry, plus the design load itself
+    when its return period is not among them (or not stated).
+    """
+    out = []
+    for entry in results.get("by_return_period") or []:
+        bare = entry_peak(entry, "bare")
+        if bare is not None:
+            out.append(ComfortResponse(float(entry["return_period_years"]),
+                                       structure_frequency_hz, bare, entry_peak(entry, "design")))
+    period = design_return_period(results)
+    if all(r.return_period_years != period for r in out) or period is None:
+        design = results.get("design")
+        out.append(ComfortResponse(period, structure_frequency_hz,
+                                   float(results["bare"]["peak_acceleration_m_s2"]),
+                                   None if design is None else
+                                   float(design["peak_acceleration_m_s2"])))
+    return out
+
+
+def matching_limits(limits, responses: list[ComfortResponse]) -> tuple[list[ComfortLimit],
+                                                                       list[ComfortLimit]]:
+    """Split comfort limits into those with a response of the same return period and the rest."""
+    periods = {r.return_period_years for r in responses if r.return_period_years is not None}
+    shown = [c for c in limits if c.return_period_years in periods]
+    return shown, [c for c in limits if c.return_period_years not in periods]

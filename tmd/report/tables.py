@@ -1,0 +1,262 @@
+"""The report's tables: every number is a results.json value, traceable by its key path.
+
+A :class:`Cell` holds the value read from the results dictionary, its key
+path (``"design.mass_kg"``, ``"sweep.3.peak_acceleration_m_s2"``) and a
+display scale (1e-3 for kN, 1000/g for milli-g, 1 +/- band for a re-tuning
+limit); the printed text is ``format_value(value * scale)``. The HTML writes
+path, full value and scale as data attributes; the CSV writes the scaled value
+at full precision.
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import math
+from dataclasses import dataclass, field
+
+SIGNIFICANT = 4
+G = 9.80665
+MILLI_G = 1000.0 / G
+UNIT_SUFFIXES = (  # longest first: the key's unit suffix and how it is printed
+    ("_n_s_per_m", "N·s/m"), ("_n_per_m", "N/m"), ("_n2_per_hz", "N²/Hz"), ("_m_s2", "m/s²"),
+    ("_m_s", "m/s"), ("_kg_m", "kg/m"), ("_hz", "Hz"), ("_kg", "kg"), ("_years", "years"),
+    ("_n", "N"), ("_m", "m"), ("_s", "s"),
+)
+LABELS = {
+    "sigma_acceleration_m_s2": "rms acceleration",
+    "peak_acceleration_m_s2": "peak acceleration",
+    "sigma_displacement_m": "rms displacement at the damper level",
+    "sigma_stroke_m": "rms stroke",
+    "peak_stroke_m": "peak stroke (one-sided)",
+    "peak_damper_force_n": "peak damper force on the structure",
+    "upcrossing_hz": "up-crossing frequency",
+    "mass_ratio": "mass ratio m_d / M*",
+    "frequency_ratio": "frequency ratio f_d / f_s",
+    "damping_ratio": "damping ratio (of its own frequency)",
+    "stiffness_n_per_m": "spring stiffness",
+    "damping_n_s_per_m": "dashpot coefficient",
+    "effective_damping_ratio": "effective damping ratio of the building",
+    "added_damping_ratio": "added damping ratio",
+    "meets_target": "meets the target",
+    "peak_acceleration_band_max_m_s2": "worst peak acceleration across the band",
+    "structure_frequency_factor": "structure frequency factor",
+}
+
+
+@dataclass(frozen=True)
+class Cell:
+    """One table cell: a results value (with its key path) or a plain label."""
+
+    value: object
+    key: str | None = None
+    scale: float = 1.0
+
+    @property
+    def text(self) -> str:
+        if self.key is None or not _is_number(self.value) or self.scale == 1.0:
+            return format_value(self.value)
+        return format_value(self.value * self.scale)
+
+
+@dataclass(frozen=True)
+class Table:
+    """A titled table: ``header`` cells, then rows of cells (lists of cells allowed in a row)."""
+
+    name: str
+    title: str
+    header: list[Cell]
+    rows: list[list[Cell]]
+    note: str = ""
+    extra: dict = field(default_factory=dict)
+
+
+def _is_number(value) -> bool:
+    return isinstance(value, int | float) and not isinstance(value, bool)
+
+
+def format_value(value, digits: int = SIGNIFICANT) -> str:
+    """Printed form of a results value: numbers to ``digits`` significant figures.
+
+    Fixed notation (thousands separated by commas) for 1e-3 <= |x| < 1e9,
+    otherwise scientific; integers as they are; booleans as yes / no.
+    """
+    if value is None:
+        return "—"
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    if isinstance(value, int):
+        return f"{value:,d}"
+    if isinstance(value, float):
+        if not math.isfinite(value):
+            return "n/a"
+        if value == 0:
+            return "0"
+        exponent = math.floor(math.log10(abs(value)))
+        if -3 <= exponent < 9:
+            decimals = digits - 1 - exponent
+            if decimals >= 0:
+                return f"{value:,.{decimals}f}"
+            return f"{round(value, decimals):,.0f}"
+        return f"{value:.{digits - 1}e}"
+    return str(value)
+
+
+def label_and_unit(key: str, scale_unit: str | None = None) -> tuple[str, str]:
+    """Readable quantity name and unit of a results key (the unit from its suffix)."""
+    unit = ""
+    stem = key
+    for suffix, printed in UNIT_SUFFIXES:
+        if key.endswith(suffix):
+            unit, stem = printed, key[: -len(suffix)]
+            break
+    label = LABELS.get(key, stem.replace("_", " "))
+    return label, scale_unit or unit
+
+
+def path_label(dotted: str) -> str:
+    """A key path as words; list indices are dropped (an index would be an untraced number)."""
+    parts = [p.replace("_", " ") for p in dotted.split(".") if not p.isdigit()]
+    return " · ".join(parts)
+
+
+def scalar(value) -> bool:
+    return value is None or isinstance(value, bool | int | float | str)
+
+
+def flatten(block: dict, path: str) -> list[tuple[str, str, object]]:
+    """(key path, leaf key, value) for every scalar in a nested dict (lists by index)."""
+    out = []
+    for key, value in block.items():
+        here = f"{path}.{key}" if path else str(key)
+        if isinstance(value, dict):
+            out += flatten(value, here)
+        elif isinstance(value, list) and all(scalar(v) for v in value):
+            out += [(f"{here}.{i}", str(key), v) for i, v in enumerate(value)]
+        elif isinstance(value, list):
+            for i, item in enumerate(value):
+                if isinstance(item, dict):
+                    out += flatten(item, f"{here}.{i}")
+        else:
+            out.append((here, str(key), value))
+    return out
+
+
+def key_value_table(name: str, title: str, block: dict, path: str, *, keys=None,
+                    note: str = "", milli_g: bool = True) -> Table:
+    """Quantity / value / unit rows for the scalars of ``block`` (in ``keys`` order if given).
+
+    Accelerations get a second row in milli-g when ``milli_g``.
+    """
+    rows = []
+    items = flatten(block, path) if keys is None else [
+        (f"{path}.{k}", k, block[k]) for k in keys if k in block]
+    for key_path, key, value in items:
+        label, unit = label_and_unit(key)
+        shown_path = key_path[len(path) + 1:] if keys is None and path else ""
+        if shown_path and shown_path != key:
+            # list items repeat their list's label (an index would be an untraced number)
+            label = path_label(shown_path)
+        rows.append([Cell(label), Cell(value, key_path), Cell(unit)])
+        if milli_g and unit == "m/s²" and _is_number(value):
+            rows.append([Cell(f"{label} (milli-g)"), Cell(value, key_path, MILLI_G),
+                         Cell("milli-g")])
+    return Table(name, title, [Cell("quantity"), Cell("value"), Cell("unit")], rows, note)
+
+
+def record_table(name: str, title: str, records: list[dict], path: str, *, columns=None,
+                 note: str = "") -> Table:
+    """One row per record (e.g. sweep points, options); columns = the records' scalar keys."""
+    if columns is None:
+        columns = []
+        for record in records:
+            columns += [k for k, v in record.items() if scalar(v) and k not in columns]
+    header = []
+    for key in columns:
+        label, unit = label_and_unit(key)
+        header.append(Cell(f"{label} [{unit}]" if unit else label))
+    rows = [[Cell(record.get(key), f"{path}.{i}.{key}") for key in columns]
+            for i, record in enumerate(records)]
+    return Table(name, title, header, rows, note)
+
+
+def by_period_table(name: str, title: str, entries: list[dict], path: str, *,
+                    note: str = "") -> Table:
+    """Quantities down, return periods across, for a list of per-return-period records."""
+    header = [Cell("quantity"), Cell("unit")] + [
+        Cell(e.get("return_period_years"), f"{path}.{i}.return_period_years")
+        for i, e in enumerate(entries)]
+    leaves: list[str] = []
+    for entry in entries:
+        leaves += [p for p, _, _ in flatten(entry, "") if p not in leaves
+                   and p != "return_period_years"]
+    rows = []
+    for leaf in leaves:
+        label, unit = label_and_unit(leaf.rsplit(".", 1)[-1])
+        if "." in leaf:
+            label = f"{path_label(leaf.rsplit('.', 1)[0])}: {label}"
+        cells = [Cell(label), Cell(unit)]
+        for i, entry in enumerate(entries):
+            cells.append(Cell(_lookup(entry, leaf), f"{path}.{i}.{leaf}"))
+        rows.append(cells)
+    return Table(name, title + " (return period [years] across)", header, rows, note)
+
+
+def _lookup(block, dotted: str):
+    for part in dotted.split("."):
+        if isinstance(block, list):
+            index = int(part)
+            block = block[index] if index < len(block) else None
+        elif isinstance(block, dict):
+            block = block.get(part)
+        else:
+            return None
+    return block
+
+
+def retuning_table(design: dict, frequency_band: float, band_source: str) -> Table:
+    """The re-tuning range to specify: damper frequency and spring over f_s (1 +/- band).
+
+    Notes
+    -----
+    The optimal frequency ratio f_d / f_s hardly depends on where f_s lies, so
+    a damper re-tuned to a building of frequency s f_s needs f_d -> s f_d and,
+    with its mass fixed, k_d = m_d (2 pi f_d)^2 -> s^2 k_d.
+    """
+    lo, hi = 1.0 - frequency_band, 1.0 + frequency_band
+    f, k = "design.frequency_hz", "design.stiffness_n_per_m"
+    rows = [
+        [Cell("damper frequency"), Cell(design["frequency_hz"], f, lo),
+         Cell(design["frequency_hz"], f), Cell(design["frequency_hz"], f, hi), Cell("Hz")],
+        [Cell("spring stiffness"), Cell(design["stiffness_n_per_m"], k, lo * lo),
+         Cell(design["stiffness_n_per_m"], k), Cell(design["stiffness_n_per_m"], k, hi * hi),
+         Cell("N/m")],
+    ]
+    header = [Cell("adjustment"), Cell("lowest"), Cell("as designed"), Cell("highest"),
+              Cell("unit")]
+    note = (f"Range to specify so the damper can be re-tuned to the measured building frequency "
+            f"anywhere within ±{100 * frequency_band:.3g} % of nominal ({band_source}): damper "
+            "frequency scaled by the building's frequency factor s, spring by s² at fixed mass.")
+    return Table("retuning", "Re-tuning adjustment range", header, rows, note)
+
+
+def csv_bytes(table: Table) -> bytes:
+    """The table as CSV: header texts, then each cell's scaled value at full precision."""
+    buffer = io.StringIO()
+    writer = csv.writer(buffer, lineterminator="\n")
+    writer.writerow([c.text for c in table.header])
+    for row in table.rows:
+        writer.writerow([_raw(c) for c in row])
+    return buffer.getvalue().encode("utf-8")
+
+
+def _raw(cell: Cell) -> str:
+    if cell.key is None:
+        return cell.text
+    if cell.value is None:
+        return ""
+    if isinstance(cell.value, bool):
+        return "true" if cell.value else "false"
+    if _is_number(cell.value):
+        return repr(cell.value * cell.scale) if cell.scale != 1.0 else repr(cell.value)
+    return str(cell.value)
