@@ -1,0 +1,364 @@
+"""A bank of tuned mass dampers sized as a sequence of convex programs.
+
+With each damper's frequency f_j and damping ratio zeta_j fixed, the
+structure's dynamic stiffness
+
+    Z(f) = k_s - omega^2 M* + i omega c_s - sum_j m_j omega^2 T_j(omega)
+
+is affine in the masses m_j, so |Z| is convex in m. At the current masses m0
+
+    l(f) = Re(conj(Z(m0)) Z(m)) / |Z(m0)|
+
+is affine in m, equals |Z| at m0 and is <= |Z| everywhere (Cauchy-Schwarz),
+so on a fixed quadrature grid f_i with weights w_i
+
+    sigma_a^2 = sum_i w_i S_F(f_i) omega_i^4 / |Z_i|^2
+             <= sum_i w_i S_F(f_i) omega_i^4 l_i^-2,
+
+convex in m where l > 0 (``cvxpy.power(l, -2)``); a stroke variance has the
+same form with |omega^2 / D_j|^2 in place of omega^4. Each step minimises the
+total mass subject to these bounds with the peak factors frozen at the
+current iterate (g sigma <= limit), m >= 0: the convex-concave procedure of
+Lipp & Boyd (2016). Variables are nondimensional (Z / k_s, m / M*); the grid
+is the engine's pole-clustered grid of the current iterate
+(:func:`tmd.grid.pole_grid`), so at m0 the bound is exactly the engine's
+moment. The solver is CLARABEL.
+
+After each step the design is re-checked with the engine
+(:func:`tmd.performance.assess`, its own grid, peak factors recomputed); if
+the check fails the step is halved towards the new masses' direction until
+it passes. The mass never increases and the iteration converges to a
+stationary point, not necessarily the global optimum. The start is feasible:
+the dictionary's masses are scaled up uniformly (doubling) until the target
+holds. Several structure-frequency scenarios (a detuning band) are simply
+more constraints. A dictionary of candidate tunings (a grid of frequency
+ratios x damping ratios) lets the solver choose which dampers to use;
+candidates whose mass falls to (numerically) zero are dropped from the
+problem, together with their stroke constraints (a damper that is not built
+has no stroke to limit), which only enlarges the feasible set.
+
+References
+----------
+Lipp, T. and Boyd, S. (2016). Variations and extension of the convex-concave
+procedure. Optimization and Engineering 17, 263-287.
+Igusa, T. and Xu, K. (1994). Vibration control using multiple tuned mass
+dampers. Journal of Sound and Vibration 175(4), 491-503.
+Diamond, S. and Boyd, S. (2016). CVXPY: a Python-embedded modeling language for
+convex optimization. Journal of Machine Learning Research 17(83), 1-5.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import cvxpy as cp
+import numpy as np
+
+from tmd.dampers.absorber import Absorbers
+from tmd.design import DesignError, LoadCase
+from tmd.grid import pole_grid
+from tmd.performance import Assessment, assess
+from tmd.response import closed_loop_poles, resonances
+
+TWO_PI = 2.0 * math.pi
+# The convex step aims this far (relative, on sigma) inside the limits so that
+# the engine's re-check on its own grid passes without a back-off.
+STEP_MARGIN = 1e-7
+CHECK_TOLERANCE = 1e-9
+MAX_BACKOFFS = 8
+PRUNE_FRACTION = 1e-6
+
+
+class BankSolverError(DesignError):
+    """The convex solver failed, or returned an inaccurate step the engine rejects."""
+
+
+@dataclass(frozen=True)
+class BankSettings:
+    """The candidate dictionary and the iteration (case keys under [options]).
+
+    Parameters
+    ----------
+    frequency_ratios : tuple of float
+        Candidate f_j / f_s [-] (f_s the nominal structure frequency).
+    damping_ratios : tuple of float
+        Candidate zeta_j [-]; every pair (ratio, zeta) is one candidate.
+    frequency_factors : tuple of float
+        Structure frequency factors s of the design scenarios (f_s -> s f_s,
+        M* and zeta_s kept, dampers unchanged) [-]; (1.0,) is nominal.
+    max_iterations : int
+        Convex steps at most.
+    tolerance : float
+        Stop when a step lowers the total mass by less than this fraction.
+    """
+
+    frequency_ratios: tuple[float, ...] = (0.90, 0.94, 0.98, 1.02)
+    damping_ratios: tuple[float, ...] = (0.04, 0.08, 0.12)
+    frequency_factors: tuple[float, ...] = (1.0,)
+    max_iterations: int = 30
+    tolerance: float = 1e-4
+
+    def candidates(self) -> tuple[np.ndarray, np.ndarray]:
+        """Frequency ratios and damping ratios of every candidate, flattened."""
+        r, z = np.meshgrid(np.asarray(self.frequency_ratios, float),
+                           np.asarray(self.damping_ratios, float), indexing="ij")
+        return r.ravel(), z.ravel()
+
+
+@dataclass(frozen=True)
+class BankIterate:
+    """One accepted iterate: total mass ratio, worst peak acceleration and stroke ratio."""
+
+    mass_ratio: float
+    peak_acceleration_m_s2: float
+    max_stroke_ratio: float
+    step: float
+    status: str
+
+
+@dataclass(frozen=True)
+class BankDesign:
+    """A sized bank: the dampers in use and how the iteration went (SI)."""
+
+    mass_kg: np.ndarray
+    frequency_hz: np.ndarray
+    damping_ratio: np.ndarray
+    mass_ratio: float
+    meets_target: bool
+    governed_by: str
+    message: str
+    history: tuple[BankIterate, ...] = field(default=())
+
+    @property
+    def absorbers(self) -> Absorbers:
+        return Absorbers.tuned_masses(self.mass_kg[None, :], self.frequency_hz[None, :],
+                                      self.damping_ratio[None, :])
+
+    @property
+    def dampers(self) -> list[dict]:
+        return [{"mass_kg": float(m), "frequency_hz": float(f), "damping_ratio": float(z)}
+                for m, f, z in zip(self.mass_kg, self.frequency_hz, self.damping_ratio,
+                                   strict=True)]
+
+
+class _Problem:
+    """The structure, load, scenarios and limits, with the engine check."""
+
+    def __init__(self, case, target, max_stroke_m, factors, frequency_hz, damping_ratio):
+        self.case, self.target, self.max_stroke = case, target, max_stroke_m
+        self.s = np.asarray(factors, float)
+        self.f = np.asarray(frequency_hz, float)
+        self.zeta = np.asarray(damping_ratio, float)
+        m = case.mode
+        self.fs = self.s * m.frequency_hz
+        self.k0 = m.stiffness_n_per_m
+
+    def absorbers(self, mu, keep):
+        m = self.case.mode
+        shape = (self.s.size, int(keep.sum()))
+        return Absorbers.tuned_masses(np.broadcast_to(mu[keep] * m.modal_mass_kg, shape),
+                                      np.broadcast_to(self.f[keep], shape),
+                                      np.broadcast_to(self.zeta[keep], shape))
+
+    def assess(self, mu, keep) -> Assessment:
+        m, c = self.case.mode, self.case
+        return assess(self.fs, m.modal_mass_kg, m.damping_ratio, self.absorbers(mu, keep),
+                      c.spectrum, c.duration_s, shape_factor=c.shape_factor)
+
+    def ratios(self, mu, keep):
+        """Worst peak / target and worst stroke / limit over the scenarios."""
+        a = self.assess(mu, keep)
+        acc = float(np.max(a.peak_acceleration_m_s2)) / self.target
+        used = mu[keep] > 0
+        stroke = 0.0
+        if self.max_stroke is not None and np.any(used):
+            stroke = float(np.max(a.peak_stroke_m[:, used])) / self.max_stroke
+        return acc, stroke, a
+
+    def feasible(self, mu, keep):
+        acc, stroke, _ = self.ratios(mu, keep)
+        return max(acc, stroke) <= 1.0 + CHECK_TOLERANCE
+
+
+def size_tmd_bank(case: LoadCase, target_peak_m_s2: float, *, max_mass_ratio: float,
+                  max_stroke_m: float | None = None,
+                  settings: BankSettings = BankSettings(),
+                  frequency_ratios=None, damping_ratios=None) -> BankDesign:
+    """Least total mass of a TMD bank chosen from a dictionary of tunings.
+
+    Parameters
+    ----------
+    case : LoadCase
+    target_peak_m_s2 : float
+        Peak acceleration target at the evaluation height, in every scenario
+        [m/s^2].
+    max_mass_ratio : float
+        Largest total mass over M* [-].
+    max_stroke_m : float, optional
+        Peak stroke limit of every damper in use [m].
+    settings : BankSettings
+        Dictionary grid, scenarios and iteration limits.
+    frequency_ratios, damping_ratios : array, optional
+        An explicit list of candidates (equal lengths) instead of the grid.
+
+    Returns
+    -------
+    BankDesign
+        ``governed_by`` "target" (a stationary point of the convex-concave
+        procedure), "mass" (no uniform scaling of the dictionary within
+        max_mass_ratio meets the target) or "bare".
+
+    Raises
+    ------
+    BankSolverError
+        If a convex step fails, or is inaccurate and the engine rejects it.
+
+    Notes
+    -----
+    See the module notes for the bound, the step, the back-off and pruning.
+    """
+    if frequency_ratios is None:
+        ratios, zetas = settings.candidates()
+    else:
+        ratios, zetas = (np.atleast_1d(np.asarray(v, float)) for v in
+                         (frequency_ratios, damping_ratios))
+    problem = _Problem(case, target_peak_m_s2, max_stroke_m, settings.frequency_factors,
+                       ratios * case.mode.frequency_hz, zetas)
+    n = ratios.size
+    keep = np.ones(n, bool)
+    bare_acc = float(np.max(problem.assess(np.zeros(n), keep).peak_acceleration_m_s2))
+    if bare_acc <= target_peak_m_s2:
+        return _design(problem, np.zeros(n), keep, True, "bare",
+                       "the bare building already meets the target: no damper is needed", ())
+    mu, keep = _feasible_start(problem, n, max_mass_ratio)
+    if mu is None:
+        top = np.full(n, max_mass_ratio / n)
+        return _design(problem, top, np.ones(n, bool), False, "mass", (
+            f"no uniform scaling of the {n} candidate dampers within total mass ratio "
+            f"{max_mass_ratio:g} meets the target {target_peak_m_s2:.4g} m/s^2"
+            + ("" if max_stroke_m is None else f" with peak strokes <= {max_stroke_m:g} m")
+        ), ())
+    history = [_iterate(problem, mu, keep, 0.0, "start")]
+    for _ in range(settings.max_iterations):
+        proposal, status = _convex_step(problem, mu, keep)
+        accepted = None
+        step = 1.0
+        for _ in range(MAX_BACKOFFS + 1):
+            trial = mu + step * (proposal - mu)
+            trial[trial < PRUNE_FRACTION * trial.sum()] = 0.0
+            if trial.sum() <= mu.sum() and problem.feasible(trial, keep):
+                accepted = trial
+                break
+            step *= 0.5
+        if accepted is None:
+            if status != cp.OPTIMAL:
+                raise BankSolverError(
+                    f"the convex step ended '{status}' and no step towards it passes the "
+                    "engine's re-check")
+            break
+        decrease = 1.0 - accepted.sum() / mu.sum()
+        mu = accepted
+        keep = keep & (mu > 0)
+        history.append(_iterate(problem, mu, keep, step, status))
+        if decrease < settings.tolerance:
+            break
+    return _design(problem, mu, keep, True, "target", (
+        f"{int(keep.sum())} of {n} candidate dampers, total mass ratio {mu.sum():.5g}, meet the "
+        f"target {target_peak_m_s2:.4g} m/s^2 in {problem.s.size} scenario(s) after "
+        f"{len(history) - 1} convex steps (a stationary point, not necessarily the global least "
+        "mass)"), tuple(history))
+
+
+def _feasible_start(problem: _Problem, n, max_mass_ratio):
+    """Uniform masses, doubled until the engine says the target holds."""
+    keep = np.ones(n, bool)
+    total = max_mass_ratio / 2.0**12
+    while True:
+        mu = np.full(n, total / n)
+        if problem.feasible(mu, keep):
+            return mu, keep
+        if total >= max_mass_ratio:
+            break
+        total = min(2.0 * total, max_mass_ratio)
+    # At the largest mass, candidates whose own stroke breaks the limit are dropped.
+    if problem.max_stroke is not None:
+        for _ in range(n):
+            mu = np.where(keep, max_mass_ratio / max(keep.sum(), 1), 0.0)
+            acc, stroke, a = problem.ratios(mu, keep)
+            if acc <= 1 + CHECK_TOLERANCE and stroke <= 1 + CHECK_TOLERANCE:
+                return mu, keep
+            worst = np.max(a.peak_stroke_m, axis=0) > problem.max_stroke
+            if not np.any(worst):
+                break
+            keep = keep.copy()
+            keep[np.flatnonzero(keep)[worst]] = False
+            if not keep.any():
+                break
+    return None, keep
+
+
+def _convex_step(problem: _Problem, mu, keep):
+    """One convex-concave step from mu; returns (proposed masses, solver status)."""
+    m = problem.case.mode
+    c = problem.case
+    idx = np.flatnonzero(keep)
+    a = problem.assess(mu, keep)
+    absorbers = problem.absorbers(mu, keep)
+    poles = closed_loop_poles(problem.fs, m.modal_mass_kg, m.damping_ratio, absorbers)
+    grid, weight = pole_grid(*resonances(poles), c.spectrum.f_min_hz, c.spectrum.f_max_hz)
+    omega = TWO_PI * grid
+    w2 = omega**2
+    fs = problem.fs[:, None]
+    # Nondimensional z = Z / k0 = base + coeff @ mu, per scenario and node.
+    ks = (fs / m.frequency_hz) ** 2
+    base = ks - w2 / (TWO_PI * m.frequency_hz) ** 2 + 2j * m.damping_ratio * np.sqrt(ks) * (
+        omega / (TWO_PI * m.frequency_hz))
+    wa = TWO_PI * problem.f[idx]
+    d = wa**2 - w2[..., None] + 2j * problem.zeta[idx] * wa * omega[..., None]
+    transfer = 1.0 + w2[..., None] / d
+    coeff = -(w2[..., None] / (TWO_PI * m.frequency_hz) ** 2) * transfer
+    z0 = base + coeff @ mu[idx]
+    unit = np.conj(z0) / np.abs(z0)
+    p = np.real(unit * base)
+    q = np.real(unit[..., None] * coeff)
+    load = weight * c.spectrum(grid) / problem.k0**2
+    sigma_a = problem.target / (np.asarray(a.peak_factor) * c.shape_factor) * (1 - STEP_MARGIN)
+    x = cp.Variable(idx.size, nonneg=True)
+    constraints = []
+    for k in range(problem.s.size):
+        inverse_sq = cp.power(p[k] + q[k] @ x, -2)
+        acc_weight = load[k] * omega[k] ** 4 / sigma_a[k] ** 2
+        constraints.append(acc_weight @ inverse_sq <= 1.0)
+        if problem.max_stroke is not None:
+            g_r = a.peak_stroke_m[k] / a.sigma_stroke_m[k]
+            limit = problem.max_stroke / g_r * (1 - STEP_MARGIN)
+            stroke_weight = (np.abs(w2[k][:, None] / d[k]) ** 2 * load[k][:, None]
+                             / limit**2).T
+            constraints.append(stroke_weight @ inverse_sq <= 1.0)
+    prob = cp.Problem(cp.Minimize(cp.sum(x)), constraints)
+    try:
+        prob.solve(solver=cp.CLARABEL)
+    except cp.SolverError as exc:
+        raise BankSolverError(f"the convex step failed in CLARABEL: {exc}") from exc
+    if prob.status not in (cp.OPTIMAL, cp.OPTIMAL_INACCURATE) or x.value is None:
+        raise BankSolverError(
+            f"the convex step ended '{prob.status}' although the current design is feasible; "
+            "the problem is badly scaled or the load spectrum is degenerate")
+    proposal = np.zeros_like(mu)
+    proposal[idx] = np.maximum(x.value, 0.0)
+    return proposal, prob.status
+
+
+def _iterate(problem, mu, keep, step, status) -> BankIterate:
+    acc, stroke, _ = problem.ratios(mu, keep)
+    return BankIterate(float(mu.sum()), acc * problem.target, stroke, step, str(status))
+
+
+def _design(problem, mu, keep, meets, governed, message, history) -> BankDesign:
+    mass = problem.case.mode.modal_mass_kg
+    used = keep & (mu > 0)
+    return BankDesign(mass_kg=mu[used] * mass, frequency_hz=problem.f[used].copy(),
+                      damping_ratio=problem.zeta[used].copy(), mass_ratio=float(mu[used].sum()),
+                      meets_target=bool(meets), governed_by=governed, message=message,
+                      history=history)
