@@ -1,0 +1,326 @@
+"""Passive options side by side: each sized for the same mode, load and target.
+
+One call, :func:`compare_options`, sizes every enabled option for the least
+mass that meets the peak-acceleration target (for added viscous damping: the
+damping required) and returns one plain dict per option, ready for
+results.json. Options (names of our own):
+
+=================  ==========================================================
+``tmd``            translational TMD (:func:`tmd.design.least_mass`)
+``pendulum``       pendulum TMD (:mod:`tmd.dampers.pendulum`)
+``tmd-bank``       bank of TMDs, convex sizing (:mod:`tmd.dampers.bank`)
+``liquid-column``  tuned liquid column damper (:mod:`tmd.dampers.liquid_column`)
+``sloshing-tank``  screened rectangular sloshing tanks (:mod:`tmd.dampers.sloshing`)
+``viscous``        added viscous damping (:mod:`tmd.viscous`)
+=================  ==========================================================
+
+Every row also carries the worst peak acceleration over the detuning band
+s in [1 - b, 1 + b] (structure frequency f_s -> s f_s with M* and zeta_s
+kept; the dampers keep their absolute mass, spring and dashpot, liquid
+dampers their head-loss or screen coefficient, whose equivalent damping is
+re-solved at every s; added dashpots their constant).
+
+References
+----------
+See the option modules. Results are preliminary: wind-tunnel data and the
+measured properties of the building govern, and every damper must be
+re-tuned to the as-built structure.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from dataclasses import dataclass, field
+
+import numpy as np
+from scipy.optimize import minimize_scalar
+
+from tmd.dampers.bank import BankSettings, size_tmd_bank
+from tmd.dampers.liquid_column import (
+    ColumnSettings,
+    size_liquid_column,
+    velocity_proportional_fixed_point,
+)
+from tmd.dampers.pendulum import PendulumSettings, pendulum_design
+from tmd.dampers.sloshing import TankSettings, size_sloshing_tanks
+from tmd.design import LoadCase, Sizing, TmdDesign, least_mass
+from tmd.performance import assess, effective_damping_ratio
+from tmd.robust import factor_grid, peak_acceleration_band_max
+from tmd.viscous import ViscousSettings, peak_acceleration_with_dashpot, size_added_damping
+
+BAND_POINTS = 41
+
+
+@dataclass(frozen=True)
+class OptionSettings:
+    """Settings of every option (defaults are ours; see each settings class)."""
+
+    pendulum: PendulumSettings = field(default_factory=PendulumSettings)
+    bank: BankSettings = field(default_factory=BankSettings)
+    column: ColumnSettings = field(default_factory=ColumnSettings)
+    tank: TankSettings = field(default_factory=TankSettings)
+    viscous: ViscousSettings = field(default_factory=ViscousSettings)
+
+
+@dataclass
+class _Job:
+    case: LoadCase
+    target: float
+    max_mass_ratio: float
+    max_stroke_m: float | None
+    band: float
+    settings: OptionSettings
+    _tmd: Sizing | None = None
+
+    def tmd_sizing(self) -> Sizing:
+        if self._tmd is None:
+            self._tmd = least_mass(self.case, self.target, max_mass_ratio=self.max_mass_ratio,
+                                   max_stroke_m=self.max_stroke_m)
+        return self._tmd
+
+
+def compare_options(case: LoadCase, target_peak_m_s2: float, *, enabled=None,
+                    max_mass_ratio: float = 0.05, max_stroke_m: float | None = None,
+                    frequency_band: float = 0.1,
+                    settings: OptionSettings | None = None) -> list[dict]:
+    """Size every enabled passive option and describe each in one dict.
+
+    Parameters
+    ----------
+    case : LoadCase
+    target_peak_m_s2 : float
+        Peak acceleration target at the evaluation height [m/s^2].
+    enabled : sequence of str, optional
+        Option names (keys of :data:`OPTIONS`), in the order wanted; all by
+        default.
+    max_mass_ratio : float
+        Largest mass (liquid mass for liquid dampers) over M* [-].
+    max_stroke_m : float, optional
+        Peak stroke limit of TMD-like options [m] (liquid dampers have their
+        own geometric limits in their settings).
+    frequency_band : float
+        Half-width b of the structure-frequency band for the worst-case
+        peak [-].
+    settings : OptionSettings, optional
+
+    Returns
+    -------
+    list of dict
+        Keys: ``option``, ``mass_kg``, ``mass_ratio``, ``peak_acceleration_m_s2``,
+        ``peak_stroke_m``, ``peak_damper_force_n``, ``effective_damping_ratio``,
+        ``peak_acceleration_band_max_m_s2``, ``meets_target``, ``message``,
+        ``dimensions`` (dict, keys with units); TMD-like options add
+        ``dampers`` [{mass_kg, frequency_hz, damping_ratio}]; liquid options
+        add ``participating_mass_kg``, ``rigid_mass_kg``, ``frequency_hz``,
+        ``equivalent_damping_ratio``; each adds its own specification keys.
+
+    Raises
+    ------
+    ValueError
+        For an unknown option name.
+    tmd.design.DesignError
+        If an optimiser fails (the bank's convex solver included).
+    """
+    names = list(OPTIONS) if enabled is None else list(enabled)
+    unknown = [n for n in names if n not in OPTIONS]
+    if unknown:
+        raise ValueError(f"unknown option(s) {unknown}; known: {list(OPTIONS)}")
+    job = _Job(case, target_peak_m_s2, max_mass_ratio, max_stroke_m, frequency_band,
+               settings or OptionSettings())
+    return [{"option": name} | OPTIONS[name](job) for name in names]
+
+
+# --- rows ---------------------------------------------------------------------
+
+def _tmd_row(job: _Job) -> dict:
+    sizing = job.tmd_sizing()
+    return _tmd_like(job, sizing, sizing.design)
+
+
+def _pendulum_row(job: _Job) -> dict:
+    sizing = job.tmd_sizing()
+    row = _tmd_like(job, sizing, sizing.design)
+    if sizing.design is None:
+        return row | {"stages": job.settings.pendulum.stages, "peak_swing_angle_rad": 0.0}
+    p = pendulum_design(sizing.design, job.settings.pendulum)
+    row["dimensions"] = {"pendulum_length_m": p.length_m, "stage_length_m": p.stage_length_m}
+    return row | {"stages": p.stages, "peak_swing_angle_rad": p.peak_swing_angle_rad}
+
+
+def _tmd_like(job: _Job, sizing: Sizing, design: TmdDesign | None) -> dict:
+    if design is None:
+        return _empty_row(job, sizing.message) | {"dampers": []}
+    band = peak_acceleration_band_max(job.case, design.damper, job.band).peak_acceleration_m_s2
+    return {
+        "mass_kg": design.mass_kg, "mass_ratio": design.mass_ratio,
+        "peak_acceleration_m_s2": design.peak_acceleration_m_s2,
+        "peak_stroke_m": design.peak_stroke_m, "peak_damper_force_n": design.peak_damper_force_n,
+        "effective_damping_ratio": design.effective_damping_ratio,
+        "peak_acceleration_band_max_m_s2": float(band), "meets_target": bool(sizing.meets_target),
+        "message": sizing.message, "dimensions": {},
+        "dampers": [{"mass_kg": design.mass_kg, "frequency_hz": design.frequency_hz,
+                     "damping_ratio": design.damping_ratio}],
+    }
+
+
+def _bank_row(job: _Job) -> dict:
+    bank = size_tmd_bank(job.case, job.target, max_mass_ratio=job.max_mass_ratio,
+                         max_stroke_m=job.max_stroke_m, settings=job.settings.bank)
+    absorbers = bank.absorbers
+    a = job.case.assess(absorbers)
+    m = job.case.mode
+
+    def peaks(s):
+        return assess(s * m.frequency_hz, m.modal_mass_kg, m.damping_ratio, absorbers,
+                      job.case.spectrum, job.case.duration_s,
+                      shape_factor=job.case.shape_factor).peak_acceleration_m_s2
+
+    stroke = float(np.max(a.peak_stroke_m)) if bank.mass_kg.size else 0.0
+    return _measured(job, a, bank.mass_ratio, peaks) | {
+        "peak_stroke_m": stroke, "meets_target": bank.meets_target, "message": bank.message,
+        "dimensions": {}, "dampers": bank.dampers,
+        "convex_steps": max(len(bank.history) - 1, 0)}
+
+
+def _column_row(job: _Job) -> dict:
+    d = size_liquid_column(job.case, job.target, max_mass_ratio=job.max_mass_ratio,
+                           settings=job.settings.column)
+    a = job.case.assess(d.absorbers())
+
+    def peaks(s):
+        return velocity_proportional_fixed_point(
+            job.case, d.liquid_mass_kg, d.frequency_hz, d.length_ratio, d.damping_gain_s_per_m,
+            frequency_scale=s)[1].peak_acceleration_m_s2
+
+    return _measured(job, a, d.mass_ratio, peaks) | {
+        "peak_stroke_m": d.peak_excursion_m, "meets_target": d.meets_target,
+        "message": d.message,
+        "dimensions": {"liquid_length_m": d.liquid_length_m,
+                       "horizontal_length_m": d.horizontal_length_m,
+                       "vertical_liquid_height_m": d.vertical_liquid_height_m,
+                       "vertical_leg_height_m": d.vertical_leg_height_m,
+                       "cross_section_area_m2": d.cross_section_area_m2},
+        "participating_mass_kg": d.participating_mass_kg, "rigid_mass_kg": d.rigid_mass_kg,
+        "frequency_hz": d.frequency_hz, "equivalent_damping_ratio": d.equivalent_damping_ratio,
+        "length_ratio": d.length_ratio, "columns": d.columns,
+        "head_loss_coefficient": d.head_loss_coefficient,
+        "peak_excursion_ratio": d.peak_excursion_m / d.vertical_liquid_height_m}
+
+
+def _tank_row(job: _Job) -> dict:
+    d = size_sloshing_tanks(job.case, job.target, max_mass_ratio=job.max_mass_ratio,
+                            settings=job.settings.tank)
+    a = job.case.assess(d.absorbers())
+
+    def peaks(s):
+        return velocity_proportional_fixed_point(
+            job.case, d.water_mass_kg, d.frequency_hz, d.coupling, d.damping_gain_s_per_m,
+            damping_floor=d.intrinsic_damping_ratio, frequency_scale=s)[1].peak_acceleration_m_s2
+
+    dims = {"tank_length_m": d.tank_length_m, "water_depth_m": d.water_depth_m,
+            "tank_width_m": d.tank_width_m}
+    if d.freeboard_m is not None:
+        dims["freeboard_m"] = d.freeboard_m
+    return _measured(job, a, d.mass_ratio, peaks) | {
+        "peak_stroke_m": d.peak_sloshing_displacement_m, "meets_target": d.meets_target,
+        "message": d.message, "dimensions": dims,
+        "participating_mass_kg": d.participating_mass_kg, "rigid_mass_kg": d.rigid_mass_kg,
+        "frequency_hz": d.frequency_hz, "equivalent_damping_ratio": d.equivalent_damping_ratio,
+        "tank_count": d.tank_count, "screen_positions": list(d.screen_positions),
+        "screen_loss_coefficient": d.screen_loss_coefficient,
+        "intrinsic_damping_ratio": d.intrinsic_damping_ratio,
+        "peak_free_surface_elevation_m": d.peak_free_surface_elevation_m}
+
+
+def _viscous_row(job: _Job) -> dict:
+    d = size_added_damping(job.case, job.target, settings=job.settings.viscous)
+
+    def peaks(s):
+        return peak_acceleration_with_dashpot(job.case, d.added_damping_ratio, s)
+
+    return {
+        "mass_kg": None, "mass_ratio": None, "peak_acceleration_m_s2": d.peak_acceleration_m_s2,
+        "peak_stroke_m": d.peak_damper_deformation_m,
+        "peak_damper_force_n": d.peak_modal_damping_force_n,
+        "effective_damping_ratio": d.total_damping_ratio,
+        "peak_acceleration_band_max_m_s2": band_maximum(peaks, job.band),
+        "meets_target": d.meets_target, "message": d.message, "dimensions": {},
+        "added_damping_ratio": d.added_damping_ratio,
+        "damper_constant_n_s_per_m": d.damper_constant_n_s_per_m,
+        "damper_count": d.damper_count,
+        "deformation_per_modal_displacement": d.deformation_per_modal_displacement,
+        "peak_force_per_damper_n": d.peak_force_per_damper_n}
+
+
+OPTIONS: dict[str, Callable[[_Job], dict]] = {
+    "tmd": _tmd_row,
+    "pendulum": _pendulum_row,
+    "tmd-bank": _bank_row,
+    "liquid-column": _column_row,
+    "sloshing-tank": _tank_row,
+    "viscous": _viscous_row,
+}
+
+
+def _measured(job: _Job, a, mass_ratio, peaks) -> dict:
+    """The common keys of a row from an engine assessment of the design."""
+    m = job.case.mode
+    sigma = float(np.asarray(a.sigma_acceleration_m_s2).ravel()[0])
+    zeta_eff = float(effective_damping_ratio(m.frequency_hz, m.modal_mass_kg,
+                                             sigma / job.case.shape_factor, job.case.spectrum))
+    return {
+        "mass_kg": mass_ratio * m.modal_mass_kg, "mass_ratio": mass_ratio,
+        "peak_acceleration_m_s2": float(np.asarray(a.peak_acceleration_m_s2).ravel()[0]),
+        "peak_damper_force_n": float(np.asarray(a.peak_damper_force_n).ravel()[0]),
+        "effective_damping_ratio": zeta_eff,
+        "peak_acceleration_band_max_m_s2": band_maximum(peaks, job.band),
+    }
+
+
+def _empty_row(job: _Job, message: str) -> dict:
+    bare = peak_acceleration_band_max(job.case, None, 0.0).peak_acceleration_m_s2
+    return {"mass_kg": 0.0, "mass_ratio": 0.0, "peak_acceleration_m_s2": float(bare),
+            "peak_stroke_m": 0.0, "peak_damper_force_n": 0.0,
+            "effective_damping_ratio": job.case.mode.damping_ratio,
+            "peak_acceleration_band_max_m_s2": float(peak_acceleration_band_max(
+                job.case, None, job.band).peak_acceleration_m_s2),
+            "meets_target": True, "message": message, "dimensions": {}}
+
+
+# --- band maximum -------------------------------------------------------------
+
+def band_maximum(peak_of_factors: Callable[[np.ndarray], np.ndarray], frequency_band: float,
+                 *, points: int = BAND_POINTS) -> float:
+    """Largest value of a peak response over structure frequency factors in [1 - b, 1 + b].
+
+    Parameters
+    ----------
+    peak_of_factors : callable
+        Array of factors s -> array of peak accelerations [m/s^2] (one
+        batched engine call).
+    frequency_band : float
+        Half-width b [-].
+    points : int
+        Grid points before refinement.
+
+    Returns
+    -------
+    float
+        The maximum [m/s^2].
+
+    Notes
+    -----
+    Grid search, then ``scipy.optimize.minimize_scalar`` (bounded) between
+    the worst point's neighbours, as :func:`tmd.robust.peak_acceleration_band_max`
+    does for a single TMD; this one takes any design through a callable.
+    """
+    s = factor_grid(frequency_band, points)
+    peak = np.asarray(peak_of_factors(s), float)
+    i = int(np.argmax(peak))
+    best = float(peak[i])
+    if s.size == 1:
+        return best
+    lo, hi = s[max(i - 1, 0)], s[min(i + 1, s.size - 1)]
+    res = minimize_scalar(lambda x: -float(np.asarray(peak_of_factors(np.array([x]))).ravel()[0]),
+                          bounds=(lo, hi), method="bounded", options={"xatol": 1e-7})
+    return max(best, float(-res.fun))
