@@ -55,10 +55,17 @@ def _legend(ax, handles=None, **kw):
         ax.legend(handles=handles, fontsize=FONT_PT - 1, framealpha=0.9, **kw)
 
 
+def _one_two_five(value, _position=None) -> str:
+    if value <= 0:
+        return ""
+    leading = round(value / 10 ** np.floor(np.log10(value)), 6)
+    return f"{value:g}" if leading in (1.0, 2.0, 5.0) else ""
+
+
 def _plain_log_ticks(axis):
-    plain = FuncFormatter(lambda v, _: f"{v:g}")
-    axis.set_major_formatter(plain)
-    axis.set_minor_formatter(plain)
+    """Log-axis tick labels as plain numbers at 1, 2, 5 x 10^k only."""
+    axis.set_major_formatter(FuncFormatter(_one_two_five))
+    axis.set_minor_formatter(FuncFormatter(_one_two_five))
 
 
 def _milli_g_axis(ax):

@@ -154,9 +154,9 @@ def key_value_table(name: str, title: str, block: dict, path: str, *, keys=None,
     for key_path, key, value in items:
         label, unit = label_and_unit(key)
         shown_path = key_path[len(path) + 1:] if keys is None and path else ""
-        if shown_path and shown_path != key:
-            # list items repeat their list's label (an index would be an untraced number)
-            label = path_label(shown_path)
+        parent = shown_path.rsplit(".", 1)[0] if "." in shown_path else ""
+        if path_label(parent):
+            label = f"{path_label(parent)} · {label}"
         rows.append([Cell(label), Cell(value, key_path), Cell(unit)])
         if milli_g and unit == "m/s²" and _is_number(value):
             rows.append([Cell(f"{label} (milli-g)"), Cell(value, key_path, MILLI_G),
@@ -175,8 +175,8 @@ def record_table(name: str, title: str, records: list[dict], path: str, *, colum
     for key in columns:
         label, unit = label_and_unit(key)
         header.append(Cell(f"{label} [{unit}]" if unit else label))
-    rows = [[Cell(record.get(key), f"{path}.{i}.{key}") for key in columns]
-            for i, record in enumerate(records)]
+    rows = [[Cell(record[key], f"{path}.{i}.{key}") if key in record else Cell("")
+             for key in columns] for i, record in enumerate(records)]
     return Table(name, title, header, rows, note)
 
 

@@ -1,0 +1,39 @@
+"""Reports built once per session (matplotlib Agg, low DPI to keep the tests fast)."""
+
+import json
+import warnings
+from pathlib import Path
+
+import pytest
+
+from tests.report.synthetic import DEMO_CASE, full_results
+from tmd.case import load_case
+from tmd.jobs import design_job
+from tmd.outputs import to_json
+from tmd.performance import UpperEdgeWarning
+from tmd.report import render_report
+
+CASES = sorted((Path(__file__).resolve().parents[2] / "cases").glob("*.toml"))
+TEST_DPI = 40
+
+
+def as_written(results: dict) -> dict:
+    """results as results.json holds them (non-finite floats as null)."""
+    return json.loads(to_json(results))
+
+
+@pytest.fixture(scope="session", params=CASES, ids=[c.stem for c in CASES])
+def case_report(request):
+    case = load_case(request.param)
+    results = design_job(case)
+    return case, as_written(results), render_report(case, results, dpi=TEST_DPI)
+
+
+@pytest.fixture(scope="session")
+def full_report():
+    case = load_case(DEMO_CASE)
+    with warnings.catch_warnings():
+        # the demo spectrum's upper-edge note is already in results["warnings"]
+        warnings.simplefilter("ignore", UpperEdgeWarning)
+        results = full_results(case)
+    return case, as_written(results), render_report(case, results, dpi=TEST_DPI)

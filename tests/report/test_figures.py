@@ -1,0 +1,240 @@
+"""Each figure draws the computed arrays; the arrays agree with independent formulas."""
+
+import csv
+import io
+
+import numpy as np
+import pytest
+from rich.console import Console
+
+from tmd.jobs import load_case_of
+from tmd.report import plots, series
+from tmd.report.assemble import render_report
+from tmd.report.comfort import comfort_limits, melbourne_palmer_peak_acceleration
+from tmd.report.progress import progress_bar, quiet_step
+
+G = 9.80665
+
+
+def xy(line):
+    x, y = line.get_data()
+    return np.asarray(x, float), np.asarray(y, float)
+
+
+def two_dof_acceleration(f, mode, design):
+    """|H_a| of structure + TMD from the 2-DOF equations of motion (Den Hartog 1956):
+    (k + k_d - w^2 M + i w (c + c_d)) X - (k_d + i w c_d) Y = F,
+    -(k_d + i w c_d) X + (k_d - w^2 m_d + i w c_d) Y = 0, Y the damper's absolute motion."""
+    w = 2 * np.pi * f
+    ws = 2 * np.pi * mode.frequency_hz
+    k, c = mode.modal_mass_kg * ws**2, 2 * mode.damping_ratio * mode.modal_mass_kg * ws
+    kd, cd, md = design["stiffness_n_per_m"], design["damping_n_s_per_m"], design["mass_kg"]
+    coupling = kd + 1j * w * cd
+    ds = k + kd - w**2 * mode.modal_mass_kg + 1j * w * (c + cd)
+    dd = kd - w**2 * md + 1j * w * cd
+    return np.abs(w**2 * dd / (ds * dd - coupling**2))
+
+
+def test_force_spectrum_figure(case_report):
+    case, _, _ = case_report
+    load = load_case_of(case)
+    f, s = series.force_spectrum_curve(load)
+    ax = plots.plot_force_spectrum(f, s, structure_frequency_hz=case.mode.frequency_hz)
+    x, y = xy(ax.lines[0])
+    np.testing.assert_array_equal(x, f)
+    np.testing.assert_array_equal(y, s)
+    # The drawn curve passes through the case's own table points (log-log
+    # interpolation is exact at the nodes); read the CSV independently.
+    table = case.path.parent / case.inputs["load"]["force_psd_csv"]
+    text = table.read_text(encoding="utf-8").splitlines()
+    rows = np.array([[float(v) for v in r] for r in list(csv.reader(text))[1:]])
+    assert x[0] == rows[0, 0] and x[-1] == rows[-1, 0]
+    np.testing.assert_allclose(load.spectrum(rows[:, 0]), rows[:, 1], rtol=1e-12)
+    assert "Hz" in ax.get_xlabel() and "N²/Hz" in ax.get_ylabel()
+
+
+def test_frequency_response_figure(case_report):
+    case, results, _ = case_report
+    load = load_case_of(case)
+    h = series.acceleration_frequency_response(load, results["design"])
+    ax = plots.plot_frequency_response(h.frequency_hz, h.bare, h.damped)
+    x, bare = xy(ax.lines[0])
+    np.testing.assert_array_equal(x, h.frequency_hz)
+    np.testing.assert_array_equal(bare, h.bare)
+    m = case.mode
+    # SDOF at resonance: |H_a(f_s)| = 1 / (2 zeta M*) (Clough & Penzien, dynamic
+    # magnification 1/(2 zeta)); the grid's geometric midpoint is f_s.
+    mid = len(x) // 2
+    assert x[mid] == pytest.approx(m.frequency_hz, rel=1e-12)
+    assert bare[mid] == pytest.approx(1 / (2 * m.damping_ratio * m.modal_mass_kg), rel=1e-9)
+    # damped curve against the 2-DOF equations solved in closed form; rtol covers
+    # float rounding of the stiffness / dashpot derived from the ratios
+    _, damped = xy(ax.lines[1])
+    np.testing.assert_allclose(damped, two_dof_acceleration(x, m, results["design"]), rtol=1e-9)
+    assert "m/s²" in ax.get_ylabel()
+
+
+def test_acceleration_psd_figure(case_report):
+    case, results, _ = case_report
+    load = load_case_of(case)
+    p = series.acceleration_psd(load, results["design"])
+    bare, design = results["bare"], results["design"]
+    ax = plots.plot_acceleration_psd(
+        p.frequency_hz, p.bare, p.damped, bare_sigma_m_s2=bare["sigma_acceleration_m_s2"],
+        bare_peak_m_s2=bare["peak_acceleration_m_s2"],
+        damped_sigma_m_s2=design["sigma_acceleration_m_s2"],
+        damped_peak_m_s2=design["peak_acceleration_m_s2"])
+    x, y_bare = xy(ax.lines[0])
+    _, y_damped = xy(ax.lines[1])
+    s_f = load.spectrum(x)
+    m = case.mode
+    w, ws = 2 * np.pi * x, 2 * np.pi * m.frequency_hz
+    sdof = w**2 / np.abs(m.modal_mass_kg * (ws**2 - w**2 + 2j * m.damping_ratio * ws * w))
+    # S_a = |H_a|^2 S_F, with H_a of the SDOF / 2-DOF equations in closed form
+    np.testing.assert_allclose(y_bare, sdof**2 * s_f, rtol=1e-9)
+    np.testing.assert_allclose(y_damped, two_dof_acceleration(x, m, design) ** 2 * s_f,
+                               rtol=1e-9)
+    # The drawn bare PSD holds most of the variance the results report: the
+    # grid spans f_s/3..3 f_s, so the trapezoid misses only the tails (<10 %).
+    assert np.trapezoid(y_bare, x) == pytest.approx(bare["sigma_acceleration_m_s2"] ** 2,
+                                                    rel=0.1)
+    labels = [t.get_text() for t in ax.get_legend().get_texts()]
+    assert f"{bare['peak_acceleration_m_s2']:.4g}" in labels[0]
+    assert f"{design['sigma_acceleration_m_s2']:.4g}" in labels[1]
+
+
+def test_mass_ratio_figure(case_report):
+    case, results, _ = case_report
+    load = load_case_of(case)
+    d = results["design"]
+    grid = series.mass_ratio_grid(case.damper.max_mass_ratio, d["mass_ratio"])
+    study = series.mass_ratio_study(load, grid, objective=case.damper.objective,
+                                    max_stroke_m=case.damper.max_stroke_m)
+    ax = plots.plot_mass_ratio_study(
+        study.mass_ratio, study.peak_acceleration_m_s2, study.peak_stroke_m,
+        target_peak_m_s2=results["target"]["peak_acceleration_m_s2"],
+        chosen_mass_ratio=d["mass_ratio"], chosen_peak_m_s2=d["peak_acceleration_m_s2"],
+        chosen_stroke_m=d["peak_stroke_m"], max_stroke_m=case.damper.max_stroke_m)
+    x, y = xy(ax.lines[0])
+    np.testing.assert_array_equal(x, study.mass_ratio)
+    np.testing.assert_array_equal(y, study.peak_acceleration_m_s2)
+    twin = [a for a in ax.figure.axes if a is not ax and a.lines][0]
+    np.testing.assert_array_equal(xy(twin.lines[0])[1], study.peak_stroke_m)
+    # At the chosen mass ratio the study re-tunes to the design's optimum; tol
+    # is the SLSQP tolerance of the optimum value
+    at = np.flatnonzero(grid == d["mass_ratio"])[0]
+    assert y[at] == pytest.approx(d["peak_acceleration_m_s2"], rel=1e-5)
+    # More mass never hurts the best tuning (a fact of the trade: Warburton's
+    # optimum response falls with mu), and the stroke limit holds everywhere.
+    assert np.all(np.diff(y) <= 1e-6 * y[:-1])
+    assert np.all(study.peak_stroke_m <= case.damper.max_stroke_m * (1 + 1e-5))
+
+
+def test_detuning_figure(full_report):
+    case, results, _ = full_report
+    load = load_case_of(case)
+    nominal = series.sweep_from_results(results["sweep"])
+    bare = series.sweep_from_results(results["sweep_bare"])
+    robust = series.detuned_sweep(load, results["robust_design"],
+                                  nominal.structure_frequency_factor)
+    ax = plots.plot_detuning_sweep(nominal.structure_frequency_factor,
+                                   bare.peak_acceleration_m_s2, nominal.peak_acceleration_m_s2,
+                                   target_peak_m_s2=0.1, frequency_band=0.15,
+                                   robust_factor=robust.structure_frequency_factor,
+                                   robust_m_s2=robust.peak_acceleration_m_s2)
+    for line, expected in zip(ax.lines[:3], (bare, nominal, robust), strict=True):
+        x, y = xy(line)
+        np.testing.assert_array_equal(x, expected.structure_frequency_factor)
+        np.testing.assert_array_equal(y, expected.peak_acceleration_m_s2)
+    # At s = 1 the re-computed robust sweep is the robust design's own evaluation
+    # (engine, two routes: absolute absorber vs ratios); rtol: quadrature rounding
+    one = np.flatnonzero(robust.structure_frequency_factor == 1.0)[0]
+    assert robust.peak_acceleration_m_s2[one] == pytest.approx(
+        results["robust_design"]["peak_acceleration_m_s2"], rel=1e-9)
+    # a passive TMD only adds damping: the bare building is worse at every s
+    assert np.all(bare.peak_acceleration_m_s2 > nominal.peak_acceleration_m_s2)
+    band = ax.patches[0]  # the shaded 1 +/- 0.15
+    assert (band.get_x(), band.get_x() + band.get_width()) == pytest.approx((0.85, 1.15))
+
+
+def test_comfort_figure(full_report):
+    case, results, _ = full_report
+    responses = series.comfort_responses(results, case.mode.frequency_hz)
+    shown, hidden = series.matching_limits(comfort_limits(), responses)
+    # 1, 10 and 50-year responses: every shipped limit (1 and 10 years) is shown
+    assert {r.return_period_years for r in responses} == {1.0, 10.0, 50.0}
+    assert not hidden and len(shown) == len(comfort_limits())
+    ax = plots.plot_comfort_chart(shown, responses, target_peak_m_s2=0.1,
+                                  target_return_period_years=1.0)
+    colour_of = {}
+    for line, limit in zip(ax.lines, shown, strict=False):
+        x, y = xy(line)
+        np.testing.assert_array_equal(x, limit.frequency_hz)
+        np.testing.assert_array_equal(y, limit.peak_acceleration_m_s2)
+        colour_of.setdefault(limit.return_period_years, line.get_color())
+    markers = ax.lines[len(shown):]
+    for r in responses:
+        bare = [m for m in markers if m.get_label() == f"bare, {r.return_period_years:g}-year"]
+        assert xy(bare[0])[1][0] == r.bare_peak_m_s2
+        assert xy(bare[0])[0][0] == case.mode.frequency_hz
+        if r.return_period_years in colour_of:  # limit and response share the colour
+            assert bare[0].get_markeredgecolor() == colour_of[r.return_period_years]
+    entry = results["by_return_period"][1]
+    assert any(xy(m)[1][0] == entry["design"]["peak_acceleration_m_s2"] for m in markers)
+
+
+def test_comfort_limits_not_matched_are_left_out():
+    only_fifty = [series.ComfortResponse(50.0, 0.2, 0.3, 0.1)]
+    shown, hidden = series.matching_limits(comfort_limits(), only_fifty)
+    assert not shown and len(hidden) == len(comfort_limits())
+
+
+def test_comfort_data_against_published_formulas():
+    limits = {c.name: c for c in comfort_limits()}
+    # Melbourne & Palmer (1992), formula from memory, by hand at f = 0.2 Hz, R = 10:
+    # sqrt(2 ln 120) = 3.09436, 0.68 + ln(10)/5 = 1.14052, exp(-3.65 + 0.41 ln 5) = 0.050284
+    assert melbourne_palmer_peak_acceleration(0.2, 10.0) == pytest.approx(
+        3.09436 * 1.14052 * 0.050284, rel=1e-4)  # 5-6 digit hand values
+    for name, period in (("melbourne-palmer-1yr", 1.0), ("melbourne-palmer-10yr", 10.0)):
+        c = limits[name]
+        assert c.return_period_years == period and "from memory" in c.provenance
+        # tabulated to 6 significant figures
+        np.testing.assert_allclose(c.peak_acceleration_m_s2,
+                                   melbourne_palmer_peak_acceleration(c.frequency_hz, period),
+                                   rtol=1e-5)
+    # NBCC commentary, 10-year: 15 / 25 milli-g (common practice, from memory)
+    assert limits["nbcc-10yr-residential"].peak_acceleration_m_s2 == pytest.approx(
+        0.015 * G, rel=1e-5)
+    assert limits["nbcc-10yr-office"].peak_acceleration_m_s2 == pytest.approx(0.025 * G,
+                                                                              rel=1e-5)
+    assert all(c.return_period_years == 10.0 for n, c in limits.items() if "nbcc" in n)
+
+
+def test_option_figure(full_report):
+    _, results, _ = full_report
+    options = results["options"]
+    mu = [o["mass_ratio"] for o in options]
+    peak = [o["peak_acceleration_m_s2"] for o in options]
+    worst = [o["peak_acceleration_band_max_m_s2"] for o in options]
+    ax = plots.plot_option_comparison([o["option"] for o in options], mu, peak, worst,
+                                      target_peak_m_s2=0.1)
+    np.testing.assert_array_equal(xy(ax.lines[0])[0], mu)
+    np.testing.assert_array_equal(xy(ax.lines[0])[1], peak)
+    np.testing.assert_array_equal(xy(ax.lines[1])[1], worst)
+    assert [t.get_text() for t in ax.texts] == [o["option"] for o in options]
+
+
+def test_progress_is_quiet_off_terminal_and_reports_steps(case_report):
+    case, results, _ = case_report
+    buffer = io.StringIO()
+    with progress_bar("report", console=Console(file=buffer)) as step:
+        assert step is quiet_step
+    assert buffer.getvalue() == ""
+    calls = []
+    render_report(case, results, dpi=20, on_step=lambda d, t, s: calls.append((d, t, s)))
+    done = [c[0] for c in calls]
+    assert done == sorted(done) and calls[-1][0] == calls[-1][1]
+    loud = io.StringIO()
+    with progress_bar("report", console=Console(file=loud, force_terminal=True)) as step:
+        step(1, 2, "figure")
+    assert step is not quiet_step
