@@ -209,6 +209,7 @@ def test_cautions_section_carries_the_usual_cautions(case_report):
     (0.1664093783688059, "0.1664"),
     (1.23456e-5, "1.235e-05"),
     (3, "3"),
+    (10.0, "10"),
     (True, "yes"),
     (None, "—"),
 ])

@@ -79,7 +79,8 @@ def format_value(value, digits: int = SIGNIFICANT) -> str:
     """Printed form of a results value: numbers to ``digits`` significant figures.
 
     Fixed notation (thousands separated by commas) for 1e-3 <= |x| < 1e9,
-    otherwise scientific; integers as they are; booleans as yes / no.
+    otherwise scientific; integers and integral floats without decimals;
+    booleans as yes / no.
     """
     if value is None:
         return "—"
@@ -92,6 +93,8 @@ def format_value(value, digits: int = SIGNIFICANT) -> str:
             return "n/a"
         if value == 0:
             return "0"
+        if value.is_integer() and abs(value) < 1e9:
+            return f"{value:,.0f}"  # return periods, durations: 10, not 10.00
         exponent = math.floor(math.log10(abs(value)))
         if -3 <= exponent < 9:
             decimals = digits - 1 - exponent
