@@ -10,6 +10,7 @@ carry a results value have ``data-key`` (its key path in results.json),
 from __future__ import annotations
 
 import base64
+import math
 from dataclasses import dataclass, field
 from html import escape
 
@@ -79,7 +80,8 @@ def _cell(tag: str, cell: Cell) -> str:
 
 
 def _value_attr(value) -> str:
-    if value is None:
+    if value is None or (isinstance(value, float) and not math.isfinite(value)):
+        # results.json writes non-finite floats as null
         return "null"
     if isinstance(value, bool):
         return "true" if value else "false"

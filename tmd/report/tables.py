@@ -90,7 +90,7 @@ def format_value(value, digits: int = SIGNIFICANT) -> str:
         return f"{value:,d}"
     if isinstance(value, float):
         if not math.isfinite(value):
-            return "n/a"
+            return "—"  # written as null in results.json
         if value == 0:
             return "0"
         if value.is_integer() and abs(value) < 1e9:
