@@ -176,22 +176,32 @@ def peak_acceleration_with_dashpot(case: LoadCase, added_damping_ratio: float, f
     return _assess_damped(case, zeta, s * case.mode.frequency_hz).peak_acceleration_m_s2
 
 
-def peak_velocity_m_s(case: LoadCase, damping_ratio: float) -> float:
-    """Expected peak modal velocity at the damper level [m/s] of the damped bare mode.
+def velocity_statistics(case: LoadCase, damping_ratio: float) -> tuple[float, float]:
+    """Rms modal velocity [m/s] and its up-crossing rate [Hz] of the damped bare mode.
 
     Notes
     -----
-    sigma_v = 2 pi sqrt(m2_x); the engine's acceleration variance is
-    (2 pi)^4 m4_x, so nu_v = sqrt(m4_x / m2_x); peak = g(nu_v, T) sigma_v
-    (Davenport 1964).
+    sigma_v = 2 pi sqrt(m2_x) with m2_x the displacement's second moment
+    [m^2 Hz^2]; the engine's acceleration variance is (2 pi)^4 m4_x, so
+    nu_v = sqrt(m4_x / m2_x).
     """
     m = case.mode
     r = spectral_response(m.frequency_hz, m.modal_mass_kg, damping_ratio, Absorbers.none(),
                           case.spectrum)
     m2 = float(r.displacement.m2)
     m4 = float(r.acceleration.m0) / TWO_PI**4
-    sigma_v = TWO_PI * math.sqrt(m2)
-    return float(davenport_peak_factor(math.sqrt(m4 / m2), case.duration_s)) * sigma_v
+    return TWO_PI * math.sqrt(m2), math.sqrt(m4 / m2)
+
+
+def peak_velocity_m_s(case: LoadCase, damping_ratio: float) -> float:
+    """Expected peak modal velocity at the damper level [m/s]: g(nu_v, T) sigma_v.
+
+    Notes
+    -----
+    Davenport's (1964) peak factor on :func:`velocity_statistics`.
+    """
+    sigma_v, nu_v = velocity_statistics(case, damping_ratio)
+    return float(davenport_peak_factor(nu_v, case.duration_s)) * sigma_v
 
 
 def damper_constant_n_s_per_m(added_damping_ratio, frequency_hz, modal_mass_kg,

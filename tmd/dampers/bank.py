@@ -108,9 +108,16 @@ class BankSettings:
 
 @dataclass(frozen=True)
 class BankIterate:
-    """One accepted iterate: total mass ratio, worst peak acceleration and stroke ratio."""
+    """One accepted iterate: masses, worst peak acceleration and worst stroke ratio.
+
+    ``mass_ratios`` are m_j / M* of every candidate (zero where unused);
+    ``frequency_hz`` and ``damping_ratio`` the candidates' tunings.
+    """
 
     mass_ratio: float
+    mass_ratios: tuple[float, ...]
+    frequency_hz: tuple[float, ...]
+    damping_ratio: tuple[float, ...]
     peak_acceleration_m_s2: float
     max_stroke_ratio: float
     step: float
@@ -352,7 +359,10 @@ def _convex_step(problem: _Problem, mu, keep):
 
 def _iterate(problem, mu, keep, step, status) -> BankIterate:
     acc, stroke, _ = problem.ratios(mu, keep)
-    return BankIterate(float(mu.sum()), acc * problem.target, stroke, step, str(status))
+    masses = np.where(keep, mu, 0.0)
+    return BankIterate(float(masses.sum()), tuple(masses.tolist()), tuple(problem.f.tolist()),
+                       tuple(problem.zeta.tolist()), acc * problem.target, stroke, step,
+                       str(status))
 
 
 def _design(problem, mu, keep, meets, governed, message, history) -> BankDesign:
