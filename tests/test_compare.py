@@ -1,0 +1,72 @@
+"""The options comparison on the demo case."""
+
+import warnings
+
+import pytest
+
+from tmd.case import load_case
+from tmd.compare import OPTIONS, compare_options
+from tmd.jobs import design_job, load_case_of
+
+CASE_FILE = "cases/harbourline_residences.toml"
+COMMON = ("option", "mass_kg", "mass_ratio", "peak_acceleration_m_s2", "peak_stroke_m",
+          "peak_damper_force_n", "effective_damping_ratio", "peak_acceleration_band_max_m_s2",
+          "meets_target", "dimensions")
+
+
+@pytest.fixture(scope="module")
+def rows():
+    case = load_case(CASE_FILE)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        return case, compare_options(load_case_of(case), case.target_peak_m_s2,
+                                     max_mass_ratio=case.damper.max_mass_ratio,
+                                     max_stroke_m=case.damper.max_stroke_m, frequency_band=0.1)
+
+
+def test_every_option_has_the_issue_keys(rows):
+    _, result = rows
+    assert [r["option"] for r in result] == list(OPTIONS)
+    for r in result:
+        assert set(COMMON) <= set(r)
+        assert all(key.endswith(("_m", "_m2")) for key in r["dimensions"])
+    by = {r["option"]: r for r in result}
+    for name in ("tmd", "pendulum", "tmd-bank"):
+        assert by[name]["dampers"] and set(by[name]["dampers"][0]) == {
+            "mass_kg", "frequency_hz", "damping_ratio"}
+    for name in ("liquid-column", "sloshing-tank"):
+        r = by[name]
+        assert r["participating_mass_kg"] + r["rigid_mass_kg"] == pytest.approx(r["mass_kg"],
+                                                                               rel=1e-12)
+
+
+def test_tmd_row_equals_the_design_job(rows):
+    # The same case through `tmd design` (tmd.jobs.design_job) must give the same TMD.
+    case, result = rows
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        design = design_job(case)["design"]
+    row = result[0]
+    for key in ("mass_kg", "peak_acceleration_m_s2", "peak_stroke_m", "peak_damper_force_n",
+                "effective_damping_ratio"):
+        assert row[key] == pytest.approx(design[key], rel=1e-9)  # same computation path
+    assert row["dampers"][0]["frequency_hz"] == pytest.approx(design["frequency_hz"], rel=1e-9)
+
+
+def test_verdicts_agree_with_the_numbers_and_the_band_is_no_better(rows):
+    case, result = rows
+    for r in result:
+        if r["meets_target"]:
+            assert r["peak_acceleration_m_s2"] <= case.target_peak_m_s2 * (1 + 1e-4)
+        else:
+            # only when the mass cap of the case binds (the column needs ~5.7% here)
+            assert r["mass_ratio"] == pytest.approx(case.damper.max_mass_ratio, rel=1e-12)
+            assert r["peak_acceleration_m_s2"] > case.target_peak_m_s2
+        # the band contains s = 1, so its worst value is at least the nominal peak
+        assert r["peak_acceleration_band_max_m_s2"] >= r["peak_acceleration_m_s2"] * (1 - 1e-9)
+
+
+def test_unknown_option_is_refused():
+    case = load_case(CASE_FILE)
+    with pytest.raises(ValueError, match="unknown option"):
+        compare_options(load_case_of(case), 0.1, enabled=["tmd", "flywheel"])
