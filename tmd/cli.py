@@ -14,6 +14,7 @@ from typing import Annotated
 
 import typer
 from rich.console import Console
+from rich.markup import escape
 from rich.table import Table
 
 from tmd.case import CaseError, load_case
@@ -32,6 +33,10 @@ G = 9.80665  # standard gravity, for milli-g on screen
 CaseArg = Annotated[Path, typer.Argument(help="Case file (TOML).", show_default=False)]
 
 
+def _error(kind: str, exc: Exception) -> None:
+    err_console.print(f"[bold red]{kind}:[/] {escape(str(exc))}", highlight=False, soft_wrap=True)
+
+
 def _guarded(job):
     """Turn library failures into exit codes and one clear line each."""
 
@@ -40,17 +45,17 @@ def _guarded(job):
         try:
             return job(*args, **kwargs)
         except (CaseError, OutputError) as exc:
-            err_console.print(f"[bold red]error:[/] {exc}", highlight=False)
+            _error("error", exc)
             raise typer.Exit(2) from None
         except (DesignError, NoFiniteResponse, ArithmeticError, RuntimeError) as exc:
             if os.environ.get("TMD_DEBUG"):
                 raise
-            err_console.print(f"[bold red]numerical failure:[/] {exc}", highlight=False)
+            _error("numerical failure", exc)
             raise typer.Exit(1) from None
         except ValueError as exc:
             if os.environ.get("TMD_DEBUG"):
                 raise
-            err_console.print(f"[bold red]error:[/] {exc}", highlight=False)
+            _error("error", exc)
             raise typer.Exit(2) from None
 
     return run
@@ -96,8 +101,9 @@ def _summary(result: dict) -> Table:
 
 def _print_notes(result: dict) -> None:
     for message in result.get("warnings", []):
-        err_console.print(f"[yellow]warning:[/] {message}", highlight=False)
-    out_console.print("[dim]Cautions: " + " ".join(result["cautions"]) + "[/]", highlight=False)
+        err_console.print(f"[yellow]warning:[/] {escape(message)}", highlight=False)
+    out_console.print("[dim]Cautions: " + escape(" ".join(result["cautions"])) + "[/]",
+                      highlight=False)
 
 
 @app.command()
@@ -111,11 +117,12 @@ def design(case: CaseArg,
     out_console.print(_summary(result))
     sizing = result["sizing"]
     colour = "green" if sizing["meets_target"] else "red"
-    out_console.print(f"[{colour}]{sizing['message']}[/]", highlight=False)
+    out_console.print(f"[{colour}]{escape(sizing['message'])}[/]", highlight=False)
     _print_notes(result)
     folder = out if out is not None else Path("out") / case.stem
     written = write_all(folder, {"results.json": to_json(result)}, protected=c.input_files)
-    out_console.print(f"wrote {', '.join(str(p) for p in written)}", highlight=False)
+    out_console.print(escape(f"wrote {', '.join(str(p) for p in written)}"), highlight=False,
+                      soft_wrap=True)
 
 
 @app.command()

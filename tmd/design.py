@@ -188,7 +188,7 @@ class _TuningProblem:
                                         np.exp(pts[:, 1])))
         value = np.log(self._measure(a))
         stroke = a.peak_stroke_m[:, 0]
-        self._x = x
+        self._x = x.copy()  # the optimiser may reuse and mutate its array
         self.value, self.stroke = value[0], stroke[0]
         self.grad = (value[1:3] - value[3:5]) / (2 * _STEP)
         self.stroke_grad = (stroke[1:3] - stroke[3:5]) / (2 * _STEP)

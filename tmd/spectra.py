@@ -85,7 +85,8 @@ class FirstOrderSpectrum:
 
     def __call__(self, frequency_hz):
         f = np.asarray(frequency_hz, dtype=float)
-        return self.level / (1.0 + (f / self.corner_hz) ** 2)
+        inside = (f >= self.f_min_hz) & (f <= self.f_max_hz)
+        return np.where(inside, self.level / (1.0 + (f / self.corner_hz) ** 2), 0.0)
 
 
 @dataclass(frozen=True)
@@ -155,25 +156,32 @@ class TabulatedSpectrum:
         return float(np.sum(np.where(np.abs(power) < 1e-12, log_case, general)))
 
 
-def table_problem(frequency_hz: np.ndarray, psd: np.ndarray) -> str:
-    """Describe what is wrong with a spectrum table, or return '' if nothing."""
+def table_problem(frequency_hz: np.ndarray, psd: np.ndarray, *, first_row: int = 1,
+                  row_word: str = "row") -> str:
+    """Describe what is wrong with a spectrum table, or return '' if nothing.
+
+    Rows are numbered from ``first_row`` (a CSV's first data line is line 2).
+    """
     if frequency_hz.ndim != 1 or frequency_hz.shape != psd.shape:
         return "frequency and PSD columns must be 1-D and of equal length"
     if frequency_hz.size < 2:
         return "the table needs at least two rows"
     if not np.all(np.isfinite(frequency_hz)) or np.any(frequency_hz <= 0):
         bad = int(np.flatnonzero(~(np.isfinite(frequency_hz) & (frequency_hz > 0)))[0])
-        return f"row {bad + 1}: frequency_hz = {frequency_hz[bad]!r}; must be finite and > 0"
+        return (f"{row_word} {bad + first_row}: frequency_hz = {float(frequency_hz[bad])!r}; "
+                "must be finite and > 0")
     steps = np.diff(frequency_hz)
     if np.any(steps <= 0):
         bad = int(np.flatnonzero(steps <= 0)[0]) + 1
         return (
-            f"row {bad + 1}: frequency_hz = {frequency_hz[bad]!r} does not exceed the row "
-            f"before ({frequency_hz[bad - 1]!r}); frequencies must be strictly increasing"
+            f"{row_word} {bad + first_row}: frequency_hz = {float(frequency_hz[bad])!r} does not "
+            f"exceed the {row_word} before ({float(frequency_hz[bad - 1])!r}); frequencies must "
+            "be strictly increasing"
         )
     if not np.all(np.isfinite(psd)) or np.any(psd <= 0):
         bad = int(np.flatnonzero(~(np.isfinite(psd) & (psd > 0)))[0])
-        return f"row {bad + 1}: psd_n2_per_hz = {psd[bad]!r}; must be finite and > 0"
+        return (f"{row_word} {bad + first_row}: psd_n2_per_hz = {float(psd[bad])!r}; "
+                "must be finite and > 0")
     return ""
 
 
@@ -207,10 +215,9 @@ def read_force_psd_csv(path: str | Path) -> TabulatedSpectrum:
         except ValueError as exc:
             raise SpectrumFileError(f"{path}: line {number}: {exc}") from exc
     table = np.array(values, dtype=float).reshape(-1, 2)
-    problem = table_problem(table[:, 0], table[:, 1])
+    problem = table_problem(table[:, 0], table[:, 1], first_row=2, row_word="line")
     if problem:
-        # Table rows count from the first data line; the file's line is one more.
-        raise SpectrumFileError(f"{path}: data {problem}")
+        raise SpectrumFileError(f"{path}: {problem}")
     return TabulatedSpectrum(table[:, 0], table[:, 1], source=str(path))
 
 

@@ -1,0 +1,5 @@
+"""Shared fixtures. Matplotlib runs headless (Agg) in every test."""
+
+import matplotlib
+
+matplotlib.use("Agg")

@@ -1,0 +1,128 @@
+"""TMD tuning and least-mass sizing against published optima and their own definitions."""
+
+import numpy as np
+import pytest
+
+from tmd.dampers.tmd import TunedMassDamper, den_hartog_tuning, warburton_white_force_tuning
+from tmd.design import LoadCase, bare_response, evaluate_tmd, least_mass, tune
+from tmd.performance import bare_sigma_acceleration, effective_damping_ratio
+from tmd.spectra import TabulatedSpectrum, WhiteSpectrum
+from tmd.structure import Mode
+
+
+def along_wind_like_spectrum():
+    """A smooth force spectrum with the f^-5/3 fall-off of turbulence and an
+    admittance-like roll-off (shape only; levels chosen for a tall building)."""
+    f = np.geomspace(1e-3, 10.0, 300)
+    fl = f * 150.0 / 30.0
+    s = 6.8 * fl / (1 + 10.2 * fl) ** (5 / 3) / f / (1 + (f / 0.3) ** (4 / 3)) ** 2
+    return TabulatedSpectrum(f, 4e11 * s)
+
+
+@pytest.fixture(scope="module")
+def wind_case():
+    return LoadCase(Mode(0.18, 2.0e7, 0.012), along_wind_like_spectrum(), 600.0)
+
+
+@pytest.mark.parametrize("mu", [0.01, 0.03, 0.05])
+def test_white_force_displacement_optimum_matches_warburton(mu):
+    # Warburton (1982), Table 1, undamped primary under white force on the
+    # primary, minimum displacement variance:
+    #   f = sqrt(1 + mu/2)/(1 + mu), zeta^2 = mu (1 + 3 mu/4) / (4 (1 + mu)(1 + mu/2)).
+    # The issue asks for 1e-3 in f and zeta; the optimiser reaches ~1e-8.
+    case = LoadCase(Mode(1.0, 1.0, 0.0), WhiteSpectrum(1.0))
+    t = tune(case, mu, objective="displacement", statistic="rms")
+    f_ref = np.sqrt(1 + mu / 2) / (1 + mu)
+    z_ref = np.sqrt(mu * (1 + 0.75 * mu) / (4 * (1 + mu) * (1 + mu / 2)))
+    assert t.frequency_ratio == pytest.approx(f_ref, abs=1e-3)
+    assert t.damping_ratio == pytest.approx(z_ref, abs=1e-3)
+    assert warburton_white_force_tuning(mu) == pytest.approx((f_ref, z_ref), rel=1e-15)
+
+
+def test_den_hartog_closed_form():
+    # Den Hartog (1956): f = 1/(1+mu), zeta = sqrt(3 mu / (8 (1+mu)^3)); at
+    # mu = 0.02: 0.980392, sqrt(0.06 / 8.48966) = 0.084068 (hand computation).
+    assert den_hartog_tuning(0.02) == pytest.approx((0.980392, 0.084068), abs=1e-6)
+
+
+def test_tuning_improves_on_warburton_start_under_wind(wind_case):
+    # The optimum under the actual spectrum is at least as good as the
+    # closed-form start it refines (a property of the minimiser, checked here).
+    mu = 0.02
+    t = tune(wind_case, mu)
+    start = TunedMassDamper(mu, *warburton_white_force_tuning(mu))
+    assert t.value <= evaluate_tmd(wind_case, start).peak_acceleration_m_s2 * (1 + 1e-9)
+    # and it is a local minimum: nudging either parameter makes it worse.
+    for df, dz in [(0.01, 0), (-0.01, 0), (0, 0.01), (0, -0.01)]:
+        nudged = TunedMassDamper(mu, t.frequency_ratio + df, t.damping_ratio + dz)
+        assert evaluate_tmd(wind_case, nudged).peak_acceleration_m_s2 > t.value
+
+
+def test_least_mass_meets_target_and_less_mass_fails(wind_case):
+    bare = bare_response(wind_case).peak_acceleration_m_s2
+    target = 0.6 * bare
+    s = least_mass(wind_case, target, max_mass_ratio=0.08)
+    assert s.meets_target and s.governed_by == "target"
+    d = s.design
+    # Issue acceptance: |peak/target - 1| < 1e-4 and 0.99 mu cannot meet the target.
+    assert abs(d.peak_acceleration_m_s2 / target - 1) < 1e-4
+    assert tune(wind_case, 0.99 * d.mass_ratio).value > target
+
+
+def test_stroke_limit_is_a_constraint_of_the_tuning(wind_case):
+    free = least_mass(wind_case, 0.6 * bare_response(wind_case).peak_acceleration_m_s2,
+                      max_mass_ratio=0.08)
+    limit = 0.8 * free.design.peak_stroke_m
+    target = free.design.peak_acceleration_m_s2
+    s = least_mass(wind_case, target, max_mass_ratio=0.08, max_stroke_m=limit)
+    assert s.meets_target
+    assert s.design.peak_stroke_m <= limit * (1 + 1e-6)
+    # Holding the stroke down costs mass (common practice: more damping, more mass).
+    assert s.design.mass_ratio > free.design.mass_ratio
+    assert abs(s.design.peak_acceleration_m_s2 / target - 1) < 1e-4
+
+
+def test_unreachable_target_is_reported_with_its_limit(wind_case):
+    s = least_mass(wind_case, 1e-4, max_mass_ratio=0.02)
+    assert not s.meets_target and s.governed_by == "mass"
+    assert "cannot be met" in s.message and "0.02" in s.message
+    assert s.design.peak_acceleration_m_s2 > 1e-4
+    s = least_mass(wind_case, 1e-4, max_mass_ratio=0.02, max_stroke_m=0.01)
+    assert not s.meets_target and s.governed_by == "stroke"
+    assert "stroke" in s.message
+
+
+def test_bare_building_meeting_target_needs_no_damper(wind_case):
+    s = least_mass(wind_case, 10.0, max_mass_ratio=0.05)
+    assert s.meets_target and s.design is None and s.governed_by == "bare"
+
+
+def test_effective_damping_reproduces_the_damped_rms(wind_case):
+    # By definition (root of sigma_bare(zeta) = sigma_damped): the bare mode
+    # with zeta_eff has the damped structure's rms acceleration.
+    d = evaluate_tmd(wind_case, TunedMassDamper(0.02, 0.985, 0.07))
+    m = wind_case.mode
+    sigma = bare_sigma_acceleration(m.frequency_hz, m.modal_mass_kg, d.effective_damping_ratio,
+                                    wind_case.spectrum)
+    assert sigma == pytest.approx(d.sigma_acceleration_m_s2, rel=1e-9)
+    assert d.added_damping_ratio == pytest.approx(d.effective_damping_ratio - m.damping_ratio)
+    assert d.added_damping_ratio > 0
+
+
+def test_effective_damping_of_bare_structure_is_its_own():
+    # Identity: the bare structure's effective damping is its damping ratio.
+    spec = along_wind_like_spectrum()
+    zeta = np.array([0.002, 0.01, 0.04])
+    sigma = bare_sigma_acceleration(0.18, 2e7, zeta, spec)
+    np.testing.assert_allclose(effective_damping_ratio(0.18, 2e7, sigma, spec), zeta, rtol=1e-8)
+
+
+def test_design_numbers_are_consistent_with_their_definitions(wind_case):
+    d = evaluate_tmd(wind_case, TunedMassDamper(0.02, 0.98, 0.08), 0.1)
+    m = wind_case.mode
+    wd = 2 * np.pi * d.frequency_hz
+    assert d.mass_kg == pytest.approx(0.02 * m.modal_mass_kg)
+    assert d.frequency_hz == pytest.approx(0.98 * m.frequency_hz)
+    assert d.stiffness_n_per_m == pytest.approx(d.mass_kg * wd**2)
+    assert d.damping_n_s_per_m == pytest.approx(2 * 0.08 * d.mass_kg * wd)
+    assert d.peak_acceleration_m_s2 == pytest.approx(d.peak_factor * d.sigma_acceleration_m_s2)

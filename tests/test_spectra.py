@@ -1,0 +1,48 @@
+"""Modal force spectrum tables: reading, validation, interpolation."""
+
+import numpy as np
+import pytest
+from scipy.integrate import quad
+
+from tmd.spectra import SpectrumFileError, TabulatedSpectrum, read_force_psd_csv
+
+
+def _write(path, text):
+    path.write_text(text, encoding="utf-8")
+    return path
+
+
+def test_log_log_interpolation_is_a_power_law_between_nodes(tmp_path):
+    # Between (0.1, 100) and (1, 1) a log-log line is S = 100 (f/0.1)^-2:
+    # at f = 0.3, S = 100 / 9 (hand computation).
+    p = _write(tmp_path / "s.csv", "frequency_hz,psd_n2_per_hz\n0.1,100\n1.0,1\n")
+    s = read_force_psd_csv(p)
+    assert s(np.array([0.3]))[0] == pytest.approx(100 / 9, rel=1e-12)
+    np.testing.assert_array_equal(s(np.array([0.05, 2.0])), [0.0, 0.0])  # zero outside
+    assert (s.f_min_hz, s.f_max_hz) == (0.1, 1.0)
+
+
+def test_table_variance_matches_quadrature():
+    # Reference: scipy.integrate.quad of the interpolant with the nodes as breakpoints.
+    f = np.geomspace(0.01, 3.0, 25)
+    table = TabulatedSpectrum(f, 1.0 / (1 + (f / 0.1) ** 2))
+    ref, _ = quad(lambda x: float(table(np.array([x]))[0]), f[0], f[-1], points=f[1:-1],
+                  limit=200, epsrel=1e-12)
+    assert table.variance() == pytest.approx(ref, rel=1e-9)
+
+
+@pytest.mark.parametrize("body, needle", [
+    ("freq,psd\n0.1,1\n0.2,1\n", "expected 'frequency_hz,psd_n2_per_hz'"),
+    ("frequency_hz,psd_n2_per_hz\n0.1,1\n0.1,2\n", "strictly increasing"),
+    ("frequency_hz,psd_n2_per_hz\n0.1,1\n0.2,0\n", "psd_n2_per_hz = 0.0; must be finite and > 0"),
+    ("frequency_hz,psd_n2_per_hz\n0.1,1\n0.2,-3\n", "must be finite and > 0"),
+    ("frequency_hz,psd_n2_per_hz\n0.1,1\n0.2,nan\n", "must be finite and > 0"),
+    ("frequency_hz,psd_n2_per_hz\n0.1,1\n0.2,abc\n", "line 3"),
+    ("frequency_hz,psd_n2_per_hz\n0.1,1\n", "at least two rows"),
+])
+def test_bad_tables_name_file_row_and_rule(tmp_path, body, needle):
+    p = _write(tmp_path / "bad.csv", body)
+    with pytest.raises(SpectrumFileError) as err:
+        read_force_psd_csv(p)
+    assert needle in str(err.value)
+    assert str(p) in str(err.value)
