@@ -21,9 +21,20 @@ from typing import Annotated, Any, Literal
 
 from pydantic import BaseModel, ConfigDict, Field, ValidationError, model_validator
 
+from tmd.compare import OPTIONS
 from tmd.design import OBJECTIVES
+from tmd.loads import (
+    COHERENCE_MODELS,
+    Building,
+    aerodynamic_damping_ratio,
+    modal_force_spectrum,
+    reference_height,
+)
 from tmd.spectra import ForceSpectrum, SpectrumFileError, read_force_psd_csv
 from tmd.structure import Mode
+from tmd.wind import SPECTRUM_MODELS, TERRAIN_CATEGORIES, Site
+
+OPTION_NAMES = tuple(OPTIONS)
 
 
 class CaseError(ValueError):
@@ -68,13 +79,77 @@ class DamperTable(_Table):
         return self
 
 
+class BuildingTable(_Table):
+    height_m: Positive
+    breadth_m: Positive
+    depth_m: Positive
+    drag_coefficient: Positive
+    mode_shape_exponent: Positive = 1.0
+    damper_height_m: Positive | None = None
+    evaluation_height_m: Positive | None = None
+    mass_per_length_kg_m: Positive | None = None
+
+
+class WindTable(_Table):
+    terrain: Literal[tuple(TERRAIN_CATEGORIES)]  # type: ignore[valid-type]
+    basic_speed_m_s: Positive | None = None
+    reference_height_m: Positive | None = None
+    reference_mean_speed_m_s: Positive | None = None
+    reference_turbulence_intensity: Ratio | None = None
+    orography_factor: Positive = 1.0
+    probability_shape_parameter: Positive = 0.2
+    probability_exponent: Positive = 0.5
+    spectrum: Literal[tuple(SPECTRUM_MODELS)] = "eurocode"  # type: ignore[valid-type]
+    coherence: Literal[COHERENCE_MODELS] = "exponential"  # type: ignore[valid-type]
+    n_strips: Annotated[int, Field(ge=4, le=400)] = 40
+    return_periods_years: list[Positive] = [1.0, 10.0, 50.0]
+    aerodynamic_damping: bool = False
+
+
+class ProbabilisticTable(_Table):
+    frequency_cov: Ratio
+    damping_cov: Annotated[float, Field(ge=0, lt=1, allow_inf_nan=False)] = 0.0
+    distribution: Literal["normal", "lognormal"] = "lognormal"
+    exceedance_probability: Ratio | None = None
+    seed: Annotated[int, Field(ge=0)] = 1
+    sample_count: Annotated[int, Field(ge=100, le=1_000_000)] = 20000
+
+
+class RobustnessTable(_Table):
+    frequency_band: Annotated[float, Field(ge=0, lt=0.5, allow_inf_nan=False)] = 0.15
+    robust_design: bool = True
+    sweep_range: Annotated[float, Field(gt=0, lt=0.6, allow_inf_nan=False)] = 0.20
+    probabilistic: ProbabilisticTable | None = None
+
+
+class OptionsTable(_Table):
+    enabled: list[Literal[OPTION_NAMES]] | None = None  # type: ignore[valid-type]
+    frequency_band: Annotated[float, Field(ge=0, lt=0.5, allow_inf_nan=False)] | None = None
+
+
 class CaseTable(_Table):
     name: str
     description: str = ""
     mode: ModeTable
-    load: LoadTable
+    load: LoadTable | None = None
+    wind: WindTable | None = None
+    building: BuildingTable | None = None
     target: TargetTable
     damper: DamperTable = DamperTable()
+    robustness: RobustnessTable | None = None
+    options: OptionsTable | None = None
+
+    @model_validator(mode="after")
+    def _one_load(self):
+        if self.load is not None and (self.wind is not None or self.building is not None):
+            raise ValueError("give either [load] or [wind] with [building], not both")
+        if self.load is None and (self.wind is None or self.building is None):
+            raise ValueError("the case needs [load] (a force spectrum CSV) or both [wind] and "
+                             "[building]")
+        if self.wind is not None and self.target.return_period_years is None:
+            raise ValueError("[target] return_period_years is required with [wind]: name the "
+                             "return period the target applies to")
+        return self
 
 
 @dataclass(frozen=True)
@@ -88,8 +163,24 @@ class DamperSettings:
 
 
 @dataclass(frozen=True)
+class WindLoad:
+    """The computed wind load of one return period."""
+
+    return_period_years: float
+    spectrum: ForceSpectrum
+    aerodynamic_damping_ratio: float  # 0 unless the case adds it
+    mean_speed_m_s: float  # at the EN reference height z_s
+
+
+@dataclass(frozen=True)
 class Case:
-    """A validated case, ready for the library."""
+    """A validated case, ready for the library.
+
+    ``spectrum`` is the design load's modal force spectrum (the target's
+    return period for a wind case); ``wind_loads`` holds every listed return
+    period of a wind case (empty for a CSV load). ``shape_factor`` is the
+    mode shape at the evaluation height (1 for a CSV load).
+    """
 
     name: str
     path: Path
@@ -101,6 +192,23 @@ class Case:
     description: str = ""
     inputs: dict[str, Any] = field(default_factory=dict)
     input_files: tuple[Path, ...] = ()
+    site: Site | None = None
+    building: Building | None = None
+    wind_loads: tuple[WindLoad, ...] = ()
+    target_return_period_years: float | None = None
+    wind_settings: dict[str, Any] = field(default_factory=dict)
+    tables: CaseTable | None = None
+
+    @property
+    def shape_factor(self) -> float:
+        return self.building.evaluation_mode_value if self.building else 1.0
+
+    @property
+    def design_wind_load(self) -> WindLoad | None:
+        for load in self.wind_loads:
+            if load.return_period_years == self.target_return_period_years:
+                return load
+        return None
 
 
 def load_case(path: str | Path) -> Case:
@@ -117,25 +225,60 @@ def load_case(path: str | Path) -> Case:
         table = CaseTable.model_validate(raw)
     except ValidationError as exc:
         raise CaseError(_describe(path, exc, raw)) from None
-    csv_path = (path.parent / table.load.force_psd_csv).resolve()
-    try:
-        spectrum = read_force_psd_csv(csv_path)
-    except SpectrumFileError as exc:
-        raise CaseError(f"{path}: [load] force_psd_csv = {table.load.force_psd_csv!r}: {exc}") \
-            from None
+    mode = Mode(table.mode.frequency_hz, table.mode.modal_mass_kg, table.mode.damping_ratio)
     d = table.damper
-    return Case(
-        name=table.name,
-        path=path,
-        mode=Mode(table.mode.frequency_hz, table.mode.modal_mass_kg, table.mode.damping_ratio),
-        spectrum=spectrum,
+    common = dict(
+        name=table.name, path=path, mode=mode,
         target_peak_m_s2=table.target.peak_acceleration_m_s2,
         duration_s=table.target.duration_s,
         damper=DamperSettings(d.objective, d.mass_ratio, d.max_mass_ratio, d.max_stroke_m),
-        description=table.description,
-        inputs=raw,
-        input_files=(path.resolve(), csv_path),
+        description=table.description, inputs=raw, tables=table,
     )
+    if table.load is not None:
+        csv_path = (path.parent / table.load.force_psd_csv).resolve()
+        try:
+            spectrum = read_force_psd_csv(csv_path)
+        except SpectrumFileError as exc:
+            raise CaseError(f"{path}: [load] force_psd_csv = {table.load.force_psd_csv!r}: "
+                            f"{exc}") from None
+        return Case(spectrum=spectrum, input_files=(path.resolve(), csv_path), **common)
+    return _wind_case(path, table, mode, common)
+
+
+def _wind_case(path: Path, table: CaseTable, mode: Mode, common: dict) -> Case:
+    w, b = table.wind, table.building
+    try:
+        site = Site(terrain=w.terrain, basic_speed_m_s=w.basic_speed_m_s,
+                    orography_factor=w.orography_factor,
+                    probability_shape_parameter=w.probability_shape_parameter,
+                    probability_exponent=w.probability_exponent,
+                    reference_height_m=w.reference_height_m,
+                    reference_mean_speed_m_s=w.reference_mean_speed_m_s,
+                    reference_turbulence_intensity=w.reference_turbulence_intensity)
+    except ValueError as exc:
+        raise CaseError(f"{path}: [wind]: {exc}") from None
+    try:
+        building = Building(**b.model_dump())
+    except ValueError as exc:
+        raise CaseError(f"{path}: [building]: {exc}") from None
+    periods = sorted(set(w.return_periods_years) | {table.target.return_period_years})
+    loads = []
+    for period in periods:
+        try:
+            spectrum = modal_force_spectrum(site, building, period, spectrum=w.spectrum,
+                                            coherence=w.coherence, n_strips=w.n_strips)
+        except ValueError as exc:
+            raise CaseError(f"{path}: [wind]/[building]: {exc}") from None
+        aero = (float(aerodynamic_damping_ratio(site, building, mode.modal_mass_kg,
+                                                mode.frequency_hz, period))
+                if w.aerodynamic_damping else 0.0)
+        z_s = float(reference_height(site, building))
+        loads.append(WindLoad(period, spectrum, aero, float(site.mean_speed(z_s, period))))
+    design = next(x for x in loads if x.return_period_years == table.target.return_period_years)
+    return Case(spectrum=design.spectrum, input_files=(path.resolve(),), site=site,
+                building=building, wind_loads=tuple(loads),
+                target_return_period_years=table.target.return_period_years,
+                wind_settings=w.model_dump(), **common)
 
 
 def _read_toml(path: Path) -> dict:
@@ -196,7 +339,9 @@ def _allowed(err: dict) -> str:
 
 _TABLES = {
     (): CaseTable, ("mode",): ModeTable, ("load",): LoadTable, ("target",): TargetTable,
-    ("damper",): DamperTable,
+    ("damper",): DamperTable, ("wind",): WindTable, ("building",): BuildingTable,
+    ("robustness",): RobustnessTable, ("robustness", "probabilistic"): ProbabilisticTable,
+    ("options",): OptionsTable,
 }
 
 

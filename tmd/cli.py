@@ -8,6 +8,7 @@ is allowed). Set TMD_DEBUG=1 to see a traceback instead of a one-line error.
 from __future__ import annotations
 
 import functools
+import json
 import os
 from pathlib import Path
 from typing import Annotated
@@ -20,8 +21,9 @@ from rich.table import Table
 from tmd.case import CaseError, load_case
 from tmd.dampers.tmd import TunedMassDamper
 from tmd.design import DesignError
-from tmd.jobs import design_job, evaluate_job
+from tmd.jobs import compare_job, design_job, evaluate_job, sweep_job, wind_job
 from tmd.outputs import OutputError, to_json, write_all
+from tmd.report import progress_bar, render_report
 from tmd.response import NoFiniteResponse
 
 app = typer.Typer(add_completion=False, no_args_is_help=True,
@@ -99,6 +101,24 @@ def _summary(result: dict) -> Table:
     return table
 
 
+def _return_period_table(result: dict) -> Table | None:
+    rows = result.get("by_return_period")
+    if not rows:
+        return None
+    table = Table(title="per return period (design at the target's)")
+    for name in ("return period", "bare peak acc.", "damped peak acc.", "peak stroke",
+                 "peak damper force"):
+        table.add_column(name, justify="right")
+    for row in rows:
+        d = row.get("design") or {}
+        table.add_row(
+            f"{row['return_period_years']:g} y", _accel(row["bare"]["peak_acceleration_m_s2"]),
+            _accel(d["peak_acceleration_m_s2"]) if d else "-",
+            f"{d['peak_stroke_m']:.3f} m" if d else "-",
+            f"{d['peak_damper_force_n'] / 1000:,.1f} kN" if d else "-")
+    return table
+
+
 def _print_notes(result: dict) -> None:
     for message in result.get("warnings", []):
         err_console.print(f"[yellow]warning:[/] {escape(message)}", highlight=False)
@@ -115,14 +135,59 @@ def design(case: CaseArg,
     c = load_case(case)
     result = design_job(c)
     out_console.print(_summary(result))
+    if (table := _return_period_table(result)) is not None:
+        out_console.print(table)
     sizing = result["sizing"]
     colour = "green" if sizing["meets_target"] else "red"
     out_console.print(f"[{colour}]{escape(sizing['message'])}[/]", highlight=False)
+    _robustness_table(result)
     _print_notes(result)
-    folder = out if out is not None else Path("out") / case.stem
-    written = write_all(folder, {"results.json": to_json(result)}, protected=c.input_files)
-    out_console.print(escape(f"wrote {', '.join(str(p) for p in written)}"), highlight=False,
-                      soft_wrap=True)
+    _write(c, result, out, case)
+
+
+def _write(c, result, out, case_path):
+    """results.json, the HTML report, figures and tables, all at once."""
+    folder = out if out is not None else Path("out") / case_path.stem
+    with progress_bar("Writing the report", console=err_console) as step:
+        files = {"results.json": to_json(result)} | render_report(c, result, on_step=step)
+    written = write_all(folder, files, protected=c.input_files)
+    out_console.print(escape(f"wrote {len(written)} files to {folder} (results.json, "
+                             "report.html, figures/, tables/)"), highlight=False, soft_wrap=True)
+
+
+def _robustness_table(result: dict) -> Table | None:
+    summary = result.get("robustness_summary")
+    if summary is None:
+        return None
+    band = result["frequency_band"]
+    table = Table(title=f"robustness: structure frequency within ±{100 * band:g}%")
+    table.add_column("design")
+    table.add_column("mass", justify="right")
+    table.add_column("peak acc. at nominal", justify="right")
+    table.add_column("worst peak acc. in band", justify="right")
+    d = result["design"]
+    table.add_row("nominal optimum", f"{d['mass_kg'] / 1000:,.1f} t",
+                  _accel(d["peak_acceleration_m_s2"]),
+                  _accel(result["peak_acceleration_band_max_m_s2"]))
+    r = result.get("robust_design")
+    if r:
+        table.add_row("robust (meets target across band)", f"{r['mass_kg'] / 1000:,.1f} t",
+                      _accel(r["peak_acceleration_m_s2"]),
+                      _accel(r["peak_acceleration_band_max_m_s2"]))
+    out_console.print(table)
+    notes = [f"the nominal design's worst peak in the band is "
+             f"{100 * summary['nominal_band_loss']:.1f}% above its nominal peak"]
+    if summary.get("robust_extra_mass_kg") is not None:
+        notes.append(f"the robust design costs {summary['robust_extra_mass_kg'] / 1000:,.1f} t "
+                     f"({100 * summary['robust_extra_mass_fraction']:.0f}%) more mass")
+    p = result.get("probabilistic")
+    if p:
+        notes.append(f"probability of exceeding the target: nominal "
+                     f"{p['nominal']['exceedance_probability']:.3f}"
+                     + (f", robust {p['robust']['exceedance_probability']:.3f}"
+                        if p.get("robust") else ""))
+    out_console.print("; ".join(notes), highlight=False)
+    return None
 
 
 @app.command()
@@ -153,3 +218,127 @@ def _damper_from_options(mass_ratio, frequency_ratio, damping_ratio) -> TunedMas
     if not 0 < damping_ratio < 1:
         raise CaseError(f"--damping-ratio = {damping_ratio!r}: must lie in (0, 1)")
     return TunedMassDamper(mass_ratio, frequency_ratio, damping_ratio)
+
+
+WIND_ROWS = (
+    ("reference height z_s", "reference_height_m", "{:.1f} m"),
+    ("mean speed v_m(z_s)", "mean_speed_m_s", "{:.2f} m/s"),
+    ("turbulence intensity", "turbulence_intensity", "{:.3f}"),
+    ("length scale L(z_s)", "length_scale_m", "{:.1f} m"),
+    ("S_u at the mode's frequency", "wind_spectrum_at_mode_m2_s2_per_hz", "{:.4g} m²/s²/Hz"),
+    ("aerodynamic damping ratio", "aerodynamic_damping_ratio", "{:.4f}"),
+    ("background factor B²", "background_factor_sq", "{:.4f}"),
+    ("resonance factor R²", "resonance_factor_sq", "{:.4f}"),
+    ("size reduction R_h", "size_reduction_height", "{:.4f}"),
+    ("size reduction R_b", "size_reduction_breadth", "{:.4f}"),
+    ("total log decrement", "log_decrement_total", "{:.4f}"),
+    ("up-crossing frequency", "upcrossing_hz", "{:.4f} Hz"),
+    ("peak factor k_p", "peak_factor", "{:.3f}"),
+    ("structural factor c_s c_d", "structural_factor", "{:.3f}"),
+    ("acceleration peak factor", "peak_factor_acceleration", "{:.3f}"),
+    ("EN Annex B rms acceleration", "sigma_acceleration_m_s2", "{:.4f} m/s²"),
+    ("EN Annex B peak acceleration", "peak_acceleration_m_s2", "{:.4f} m/s²"),
+    ("spectral rms acceleration", "spectral_sigma_acceleration_m_s2", "{:.4f} m/s²"),
+    ("spectral peak acceleration", "spectral_peak_acceleration_m_s2", "{:.4f} m/s²"),
+)
+
+
+@app.command()
+@_guarded
+def wind(case: CaseArg,
+         json_output: Annotated[bool, typer.Option("--json", help="Print JSON only.")] = False):
+    """Wind at the reference height and the EN 1991-1-4 Annex B check, per return period."""
+    result = wind_job(load_case(case))
+    if json_output:
+        typer.echo(to_json(result), nl=False)
+        return
+    table = Table(title=f"{result['case']['name']}: bare building, code route and spectral route")
+    table.add_column("quantity")
+    for row in result["return_periods"]:
+        table.add_column(f"{row['return_period_years']:g}-year", justify="right")
+    for label, key, fmt in WIND_ROWS:
+        table.add_row(label, *(fmt.format(row[key]) for row in result["return_periods"]))
+    out_console.print(table)
+    out_console.print("[dim]Both routes include the aerodynamic damping of EN 1991-1-4 (F.18). "
+                      "Cautions: " + escape(" ".join(result["cautions"])) + "[/]",
+                      highlight=False)
+
+
+@app.command()
+@_guarded
+def compare(case: CaseArg,
+            out: Annotated[Path | None, typer.Option(
+                help="Folder for results.json and the report (default: out/<case stem>).")
+            ] = None):
+    """Size every enabled passive option on the case and compare them."""
+    c = load_case(case)
+    result = compare_job(c)
+    table = Table(title=f"{result['case']['name']}: passive options "
+                        f"(band ±{100 * result['options_frequency_band']:g}%)")
+    for name in ("option", "mass", "% of M*", "peak acc.", "peak stroke/excursion",
+                 "peak force", "eff. damping", "worst in band", "meets"):
+        table.add_column(name, justify="right")
+    for row in result["options"]:
+        def num(key, fmt, scale=1.0, row=row):
+            v = row.get(key)
+            return "-" if v is None else fmt.format(v * scale)
+        table.add_row(row["option"], num("mass_kg", "{:,.1f} t", 1e-3),
+                      num("mass_ratio", "{:.2f}", 100.0), num("peak_acceleration_m_s2", "{:.4f}"),
+                      num("peak_stroke_m", "{:.3f} m"), num("peak_damper_force_n", "{:,.0f} kN",
+                                                            1e-3),
+                      num("effective_damping_ratio", "{:.4f}"),
+                      num("peak_acceleration_band_max_m_s2", "{:.4f}"),
+                      "yes" if row["meets_target"] else "no")
+    out_console.print(table)
+    out_console.print("accelerations in m/s² at the evaluation height", highlight=False)
+    _print_notes(result)
+    _write(c, result, out, case)
+
+
+@app.command()
+@_guarded
+def sweep(case: CaseArg,
+          design_from: Annotated[Path | None, typer.Option(
+              help="results.json whose design block is swept.")] = None,
+          mass_ratio: Annotated[float | None, typer.Option(help="m_d / M* [-].")] = None,
+          frequency_ratio: Annotated[float | None, typer.Option(help="f_d / f_s [-].")] = None,
+          damping_ratio: Annotated[float | None, typer.Option(
+              help="Damper damping ratio, referred to f_d [-].")] = None,
+          json_output: Annotated[bool, typer.Option("--json", help="Print JSON only.")] = False):
+    """Detuning sweeps of a given design (e.g. an as-built damper)."""
+    c = load_case(case)
+    damper = _design_from(design_from, mass_ratio, frequency_ratio, damping_ratio)
+    result = sweep_job(c, damper)
+    if json_output:
+        typer.echo(to_json(result), nl=False)
+        return
+    table = Table(title=f"{result['case']['name']}: structure frequency sweep")
+    for name in ("frequency factor", "bare peak acc.", "design peak acc.", "peak stroke",
+                 "eff. damping"):
+        table.add_column(name, justify="right")
+    for bare, row in zip(result["sweep_bare"], result["sweep"], strict=True):
+        table.add_row(f"{row['structure_frequency_factor']:.3f}",
+                      f"{bare['peak_acceleration_m_s2']:.4f}",
+                      f"{row['peak_acceleration_m_s2']:.4f}", f"{row['peak_stroke_m']:.3f} m",
+                      f"{row['effective_damping_ratio']:.4f}")
+    out_console.print(table)
+    out_console.print(f"worst peak acceleration in the band ±{100 * result['frequency_band']:g}%:"
+                      f" {_accel(result['peak_acceleration_band_max_m_s2'])}", highlight=False)
+    _print_notes(result)
+
+
+def _design_from(path, mass_ratio, frequency_ratio, damping_ratio) -> TunedMassDamper:
+    given = [v is not None for v in (mass_ratio, frequency_ratio, damping_ratio)]
+    if path is not None:
+        if any(given):
+            raise CaseError("give either --design-from or the three design options, not both")
+        try:
+            d = json.loads(Path(path).read_text(encoding="utf-8"))["design"]
+            return _damper_from_options(d["mass_ratio"], d["frequency_ratio"],
+                                        d["damping_ratio"])
+        except (OSError, ValueError, KeyError, TypeError) as exc:
+            raise CaseError(f"{path}: not a results.json with a design block ({exc})") from None
+    if not all(given):
+        raise CaseError("give --design-from results.json, or all of --mass-ratio, "
+                        "--frequency-ratio and --damping-ratio")
+    return _damper_from_options(mass_ratio, frequency_ratio, damping_ratio)

@@ -11,7 +11,7 @@ import warnings
 from dataclasses import asdict
 
 from tmd import __version__
-from tmd.case import Case
+from tmd.case import Case, WindLoad
 from tmd.dampers.tmd import TunedMassDamper
 from tmd.design import LoadCase, Sizing, TmdDesign, bare_response, evaluate_tmd, least_mass, tune
 
@@ -37,9 +37,37 @@ DESIGN_KEYS = (
 )
 
 
-def load_case_of(case: Case) -> LoadCase:
-    """The library's load case for the case's design load."""
-    return LoadCase(case.mode, case.spectrum, case.duration_s)
+def load_case_of(case: Case, wind_load: WindLoad | None = None) -> LoadCase:
+    """The library's load case for the design load (or one return period's wind load).
+
+    The mode's damping includes the aerodynamic damping of that load when
+    the case asks for it; accelerations are at the evaluation height.
+    """
+    load = wind_load if wind_load is not None else case.design_wind_load
+    if load is None:
+        return LoadCase(case.mode, case.spectrum, case.duration_s, case.shape_factor)
+    mode = case.mode.with_damping(case.mode.damping_ratio + load.aerodynamic_damping_ratio)
+    return LoadCase(mode, load.spectrum, case.duration_s, case.shape_factor)
+
+
+def by_return_period(case: Case, design: TmdDesign | None) -> list[dict]:
+    """Bare and damped responses for every return period of a wind case."""
+    rows = []
+    for wind_load in case.wind_loads:
+        load = load_case_of(case, wind_load)
+        row = {"return_period_years": wind_load.return_period_years,
+               "mean_speed_m_s": wind_load.mean_speed_m_s,
+               "aerodynamic_damping_ratio": wind_load.aerodynamic_damping_ratio,
+               "bare": asdict(bare_response(load))}
+        if design is not None:
+            d = evaluate_tmd(load, design.damper, case.target_peak_m_s2
+                             if wind_load.return_period_years == case.target_return_period_years
+                             else None)
+            row["design"] = {key: getattr(d, key) for key in (
+                "sigma_acceleration_m_s2", "peak_acceleration_m_s2", "sigma_stroke_m",
+                "peak_stroke_m", "peak_damper_force_n", "effective_damping_ratio")}
+        rows.append(row)
+    return rows
 
 
 def design_block(design: TmdDesign) -> dict:
@@ -61,7 +89,10 @@ def _bare_block(load: LoadCase) -> dict:
 
 
 def _target_block(case: Case) -> dict:
-    return {"peak_acceleration_m_s2": case.target_peak_m_s2, "duration_s": case.duration_s}
+    block = {"peak_acceleration_m_s2": case.target_peak_m_s2, "duration_s": case.duration_s}
+    if case.target_return_period_years is not None:
+        block["return_period_years"] = case.target_return_period_years
+    return block
 
 
 def size_damper(case: Case) -> Sizing:
@@ -96,6 +127,85 @@ def design_job(case: Case) -> dict:
             "sizing": {"meets_target": sizing.meets_target, "governed_by": sizing.governed_by,
                        "message": sizing.message},
         }
+        if case.wind_loads:
+            result["by_return_period"] = by_return_period(case, sizing.design)
+        if case.tables.robustness is not None and sizing.design is not None:
+            result |= robustness_block(case, sizing.design.damper)
+    result["warnings"] = _unique_messages(caught)
+    result["cautions"] = list(CAUTIONS)
+    return result
+
+
+def _structure_damping(case: Case):
+    """zeta_s(s) for sweeps: aerodynamic damping scales with 1 / n_1 (EN 1991-1-4 F.5)."""
+    from tmd.robust import AerodynamicDamping
+
+    load = case.design_wind_load
+    if load is None or load.aerodynamic_damping_ratio == 0.0:
+        return None
+    return AerodynamicDamping(case.mode.damping_ratio, load.aerodynamic_damping_ratio)
+
+
+def robustness_block(case: Case, damper: TunedMassDamper) -> dict:
+    """Detuning sweeps, band maximum, robust and probabilistic designs of the case."""
+    from tmd.probabilistic import Distribution, Uncertainty
+    from tmd.robust import robustness_study
+
+    r = case.tables.robustness
+    uncertainty = None
+    if r.probabilistic is not None:
+        p = r.probabilistic
+        uncertainty = Uncertainty(p.frequency_cov, p.damping_cov, Distribution(p.distribution),
+                                  p.exceedance_probability, p.seed, p.sample_count)
+    study = robustness_study(
+        load_case_of(case), damper, case.target_peak_m_s2, frequency_band=r.frequency_band,
+        sweep_range=r.sweep_range, robust_design=r.robust_design,
+        max_mass_ratio=case.damper.max_mass_ratio, max_stroke_m=case.damper.max_stroke_m,
+        structure_damping_ratio=_structure_damping(case), probabilistic=uncertainty)
+    study["robustness_summary"] = study.pop("summary")
+    return study
+
+
+def sweep_job(case: Case, damper: TunedMassDamper) -> dict:
+    """Detuning sweeps of any given design (e.g. an as-built damper)."""
+    from tmd.robust import design_sweeps
+
+    r = case.tables.robustness
+    band = r.frequency_band if r is not None else 0.15
+    sweep_range = r.sweep_range if r is not None else 0.20
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        load = load_case_of(case)
+        result = _header(case) | {
+            "target": _target_block(case),
+            "design": design_block(evaluate_tmd(load, damper, case.target_peak_m_s2)),
+        } | design_sweeps(load, damper, frequency_band=band, sweep_range=sweep_range,
+                          structure_damping_ratio=_structure_damping(case))
+    result["warnings"] = _unique_messages(caught)
+    result["cautions"] = list(CAUTIONS)
+    return result
+
+
+def compare_job(case: Case) -> dict:
+    """Every enabled passive option sized on the case, side by side."""
+    from tmd.compare import compare_options
+
+    opts = case.tables.options
+    band = None if opts is None else opts.frequency_band
+    if band is None:
+        band = case.tables.robustness.frequency_band if case.tables.robustness else 0.1
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        load = load_case_of(case)
+        result = _header(case) | {
+            "target": _target_block(case),
+            "bare": _bare_block(load),
+            "options_frequency_band": band,
+            "options": compare_options(
+                load, case.target_peak_m_s2, enabled=None if opts is None else opts.enabled,
+                max_mass_ratio=case.damper.max_mass_ratio,
+                max_stroke_m=case.damper.max_stroke_m, frequency_band=band),
+        }
     result["warnings"] = _unique_messages(caught)
     result["cautions"] = list(CAUTIONS)
     return result
@@ -112,6 +222,8 @@ def evaluate_job(case: Case, damper: TunedMassDamper) -> dict:
             "bare": _bare_block(load),
             "design": design_block(design),
         }
+        if case.wind_loads:
+            result["by_return_period"] = by_return_period(case, design)
     result["warnings"] = _unique_messages(caught)
     result["cautions"] = list(CAUTIONS)
     return result
@@ -119,3 +231,37 @@ def evaluate_job(case: Case, damper: TunedMassDamper) -> dict:
 
 def _unique_messages(caught) -> list[str]:
     return list(dict.fromkeys(str(w.message) for w in caught))
+
+
+def wind_job(case: Case) -> dict:
+    """Wind at the reference height and the EN 1991-1-4 Annex B check per return period,
+    beside the spectral route's bare-building acceleration at the evaluation height."""
+    from tmd.codecheck import annex_b_check
+    from tmd.loads import aerodynamic_damping_ratio, reference_height
+    from tmd.wind import velocity_spectrum
+
+    if case.site is None:
+        raise ValueError(f"{case.path}: 'tmd wind' needs a case with [wind] and [building]")
+    z_s = float(reference_height(case.site, case.building))
+    rows = []
+    for wind_load in case.wind_loads:
+        period = wind_load.return_period_years
+        code = annex_b_check(case.site, case.building, case.mode, period,
+                             duration_s=case.duration_s).as_dict()
+        # EN's route always includes the aerodynamic damping (F.18); so does
+        # the spectral route here, so that the two are compared like for like.
+        aero = float(aerodynamic_damping_ratio(case.site, case.building, case.mode.modal_mass_kg,
+                                               case.mode.frequency_hz, period))
+        mode = case.mode.with_damping(case.mode.damping_ratio + aero)
+        spectral = bare_response(LoadCase(mode, wind_load.spectrum, case.duration_s,
+                                          case.shape_factor))
+        s_u = velocity_spectrum(case.site, z_s, case.mode.frequency_hz, period,
+                                case.wind_settings["spectrum"])
+        rows.append({"return_period_years": period, **code,
+                     "wind_spectrum_at_mode_m2_s2_per_hz": float(s_u),
+                     "aerodynamic_damping_ratio": aero,
+                     "spectral_sigma_acceleration_m_s2": spectral.sigma_acceleration_m_s2,
+                     "spectral_peak_acceleration_m_s2": spectral.peak_acceleration_m_s2})
+    return {"tool_version": __version__, "schema_version": SCHEMA_VERSION,
+            "case": {"name": case.name, "path": str(case.path)}, "return_periods": rows,
+            "cautions": list(CAUTIONS)}
