@@ -43,6 +43,7 @@ from tmd.dampers.tmd import TunedMassDamper
 from tmd.design import (
     DAMPING_RATIO_BOUNDS,
     FREQUENCY_RATIO_BOUNDS,
+    DesignError,
     LoadCase,
     TmdDesign,
     evaluate_tmd,
@@ -463,7 +464,8 @@ def peak_acceleration_band_max(case: LoadCase, damper: TunedMassDamper | None,
 
 def tune_for_band(case: LoadCase, mass_ratio: float, frequency_factors, *,
                   max_stroke_m: float | None = None,
-                  structure_damping_ratio: StructureDamping | None = None) -> BandTuning:
+                  structure_damping_ratio: StructureDamping | None = None,
+                  start: tuple[float, float] | None = None) -> BandTuning:
     """Tuning of a TMD of given mass ratio that minimises the worst peak over a grid of s.
 
     Parameters
@@ -477,6 +479,9 @@ def tune_for_band(case: LoadCase, mass_ratio: float, frequency_factors, *,
         Peak stroke limit [m], held at every s of the grid.
     structure_damping_ratio : callable, optional
         zeta_s(s) [-].
+    start : (frequency_ratio, damping_ratio), optional
+        A warm start (e.g. the band tuning at a nearby mass ratio); it
+        replaces the nominal-optimum start.
 
     Returns
     -------
@@ -488,19 +493,39 @@ def tune_for_band(case: LoadCase, mass_ratio: float, frequency_factors, *,
     Minimax in epigraph form, solved by SLSQP in (f_d/f_s, ln zeta_d, t):
 
         minimise t  subject to  t >= ln a_peak(x; s_i)  for every s_i,
-                                 ln u_max >= ln u_peak(x; s_i)  (stroke limit),
+                                 ln u_max >= max_i ln u_peak(x; s_i)  (stroke limit),
 
     with the gradients by central differences, all designs x ± h e_k at all
-    s_i in one engine call. Starts: the nominal optimum (:func:`tmd.design.tune`
-    at s = 1) and a start with 1.5 times its damping; the better is kept.
+    s_i in one engine call. The stroke limit is one constraint on the worst
+    stroke (gradient of the worst row): one row per s_i made SLSQP zig-zag
+    to its iteration limit while the limit was far from active. Starts: the
+    nominal optimum (:func:`tmd.design.tune` at s = 1) and a start with 1.5
+    times its damping; the better is kept. The stroke limit enters only
+    when the free minimax optimum violates it.
     """
-    problem = _BandProblem(case, mass_ratio, np.asarray(frequency_factors, float),
-                           max_stroke_m, structure_damping_ratio)
+    factors = np.asarray(frequency_factors, float)
     nominal = tune(case, mass_ratio)
     zeta0 = nominal.damping_ratio
-    starts = [(nominal.frequency_ratio, zeta0)]
-    if problem.s.size > 1:
+    starts = [(nominal.frequency_ratio, zeta0) if start is None else start]
+    if factors.size > 1:
         starts.append((nominal.frequency_ratio, min(1.5 * zeta0, DAMPING_RATIO_BOUNDS[1])))
+    free = _solve_band(_BandProblem(case, mass_ratio, factors, None, structure_damping_ratio),
+                       starts)
+    if max_stroke_m is None or free[3] <= max_stroke_m:
+        # The limit is not active at the free optimum, so that is the optimum.
+        return BandTuning(float(free[2][0]), float(math.exp(free[2][1])), math.exp(free[1]),
+                          free[3], False)
+    problem = _BandProblem(case, mass_ratio, factors, max_stroke_m, structure_damping_ratio)
+    infeasible, worst, x, stroke = _solve_band(problem, starts + [(free[2][0],
+                                                                   math.exp(free[2][1]))])
+    infeasible = stroke > max_stroke_m * (1 + 1e-6)
+    return BandTuning(float(x[0]), float(math.exp(x[1])),
+                      math.inf if infeasible else math.exp(worst), stroke,
+                      bool(stroke >= max_stroke_m * (1 - 1e-4)))
+
+
+def _solve_band(problem, starts):
+    """SLSQP from each start; the best (feasible first, then least worst peak)."""
     bounds = [FREQUENCY_RATIO_BOUNDS, tuple(np.log(DAMPING_RATIO_BOUNDS)), (None, None)]
     constraints = [{"type": "ineq", "fun": problem.constraint, "jac": problem.constraint_jac}]
     best = None
@@ -510,17 +535,16 @@ def tune_for_band(case: LoadCase, mass_ratio: float, frequency_factors, *,
         z0 = np.append(x0, problem.log_peak.max())
         res = minimize(lambda z: z[2], z0, jac=lambda z: np.array([0.0, 0.0, 1.0]),
                        method="SLSQP", bounds=bounds, constraints=constraints,
-                       options={"ftol": 1e-12, "maxiter": 300})
+                       options={"ftol": 1e-10, "maxiter": 100})
         problem.evaluate(res.x[:2])
         worst, stroke = float(problem.log_peak.max()), float(problem.stroke.max())
-        feasible = max_stroke_m is None or stroke <= max_stroke_m * (1 + 1e-6)
-        candidate = (not feasible, worst, res.x[:2], stroke)
+        feasible = problem.max_stroke is None or stroke <= problem.max_stroke * (1 + 1e-6)
+        candidate = (not feasible, worst, res.x[:2].copy(), stroke)
         if np.isfinite(worst) and (best is None or candidate[:2] < best[:2]):
             best = candidate
-    infeasible, worst, x, stroke = best
-    limited = max_stroke_m is not None and stroke >= max_stroke_m * (1 - 1e-4)
-    return BandTuning(float(x[0]), float(math.exp(x[1])),
-                      math.inf if infeasible else math.exp(worst), stroke, bool(limited))
+    if best is None:
+        raise DesignError(f"the band tuning optimiser failed at mass ratio {problem.mu:g}")
+    return best
 
 
 def robust_least_mass(case: LoadCase, target_peak_m_s2: float, frequency_band: float, *,
@@ -590,9 +614,17 @@ def robust_least_mass(case: LoadCase, target_peak_m_s2: float, frequency_band: f
 
 def _robust_search(case, goal, target, band, grid, max_mu, min_mu, max_stroke_m, damping,
                    check_points) -> RobustSizing:
+    last = []
+
     def best(mu):
-        return tune_for_band(case, mu, grid, max_stroke_m=max_stroke_m,
-                             structure_damping_ratio=damping)
+        # Warm-started from the last tuning: SLSQP from the nominal optimum can
+        # zig-zag on the nearly degenerate worst-case constraints.
+        tuning = tune_for_band(case, mu, grid, max_stroke_m=max_stroke_m,
+                               structure_damping_ratio=damping,
+                               start=last[-1] if last else None)
+        if np.isfinite(tuning.value):
+            last.append((tuning.frequency_ratio, tuning.damping_ratio))
+        return tuning
 
     def finish(mu, tuning, met, governed_by, message):
         damper = TunedMassDamper(mu, tuning.frequency_ratio, tuning.damping_ratio)
@@ -662,7 +694,7 @@ class _BandProblem:
         self.evaluate(z[:2])
         rows = [z[2] - self.log_peak]
         if self.max_stroke is not None:
-            rows.append(math.log(self.max_stroke) - self.log_stroke)
+            rows.append([math.log(self.max_stroke) - self.log_stroke.max()])
         return np.concatenate(rows)
 
     def constraint_jac(self, z):
@@ -670,7 +702,8 @@ class _BandProblem:
         n = self.s.size
         rows = [np.hstack([-self.grad, np.ones((n, 1))])]
         if self.max_stroke is not None:
-            rows.append(np.hstack([-self.stroke_grad, np.zeros((n, 1))]))
+            worst = int(np.argmax(self.log_stroke))
+            rows.append(np.append(-self.stroke_grad[worst], 0.0)[None, :])
         return np.vstack(rows)
 
 
