@@ -300,6 +300,8 @@ def _describe(path: Path, exc: ValidationError, raw: dict) -> str:
 
 def _describe_one(path: Path, err: dict) -> str:
     loc = [str(p) for p in err["loc"]]
+    if not loc:  # a rule across tables
+        return f"{path}: {_allowed(err)}"
     where = _location(loc)
     kind = err["type"]
     if kind == "extra_forbidden":
