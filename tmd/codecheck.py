@@ -18,6 +18,7 @@ from dataclasses import asdict, dataclass
 import numpy as np
 
 from tmd.loads import aerodynamic_log_decrement, reference_height
+from tmd.peak import eurocode_peak_factor
 from tmd.wind.coherence import averaged_exponential
 from tmd.wind.turbulence import eurocode_reduced
 
@@ -57,15 +58,14 @@ def resonance_factor_sq(log_decrement, reduced_spectrum, reduction_height, reduc
 
 
 def peak_factor(upcrossing_hz, duration_s=AVERAGING_TIME_S):
-    """Peak factor k_p [-] (EN 1991-1-4 eq. B.4), not below 3.
+    """Peak factor k_p [-] (EN 1991-1-4 eq. B.4), not below 3, as a float.
 
     Notes
     -----
     k_p = sqrt(2 ln(nu T)) + 0.6 / sqrt(2 ln(nu T)); the standard's rounding of
-    Davenport's 0.5772.
+    Davenport's 0.5772. Computed by :func:`tmd.peak.eurocode_peak_factor`.
     """
-    g = math.sqrt(2.0 * math.log(upcrossing_hz * duration_s))
-    return max(g + 0.6 / g, 3.0)
+    return float(eurocode_peak_factor(upcrossing_hz, duration_s))
 
 
 def upcrossing_frequency(frequency_hz, background_sq, resonance_sq):
