@@ -33,7 +33,6 @@ from collections.abc import Callable
 from dataclasses import dataclass, field
 
 import numpy as np
-from scipy.optimize import minimize_scalar
 
 from tmd.dampers.bank import BankSettings, size_tmd_bank
 from tmd.dampers.liquid_column import (
@@ -45,7 +44,7 @@ from tmd.dampers.pendulum import PendulumSettings, pendulum_design
 from tmd.dampers.sloshing import TankSettings, size_sloshing_tanks
 from tmd.design import LoadCase, Sizing, TmdDesign, least_mass
 from tmd.performance import assess, effective_damping_ratio
-from tmd.robust import factor_grid, peak_acceleration_band_max
+from tmd.robust import band_maximum, peak_acceleration_band_max
 from tmd.viscous import ViscousSettings, peak_acceleration_with_dashpot, size_added_damping
 
 BAND_POINTS = 41
@@ -243,7 +242,8 @@ def _viscous_row(job: _Job) -> dict:
         "peak_stroke_m": d.peak_damper_deformation_m,
         "peak_damper_force_n": d.peak_modal_damping_force_n,
         "effective_damping_ratio": d.total_damping_ratio,
-        "peak_acceleration_band_max_m_s2": band_maximum(peaks, job.band),
+        "peak_acceleration_band_max_m_s2": band_maximum(
+            peaks, job.band, points=BAND_POINTS).peak_acceleration_m_s2,
         "meets_target": d.meets_target, "message": d.message, "dimensions": {},
         "added_damping_ratio": d.added_damping_ratio,
         "damper_constant_n_s_per_m": d.damper_constant_n_s_per_m,
@@ -273,7 +273,8 @@ def _measured(job: _Job, a, mass_ratio, peaks) -> dict:
         "peak_acceleration_m_s2": float(np.asarray(a.peak_acceleration_m_s2).ravel()[0]),
         "peak_damper_force_n": float(np.asarray(a.peak_damper_force_n).ravel()[0]),
         "effective_damping_ratio": zeta_eff,
-        "peak_acceleration_band_max_m_s2": band_maximum(peaks, job.band),
+        "peak_acceleration_band_max_m_s2": band_maximum(
+            peaks, job.band, points=BAND_POINTS).peak_acceleration_m_s2,
     }
 
 
@@ -285,42 +286,3 @@ def _empty_row(job: _Job, message: str) -> dict:
             "peak_acceleration_band_max_m_s2": float(peak_acceleration_band_max(
                 job.case, None, job.band).peak_acceleration_m_s2),
             "meets_target": True, "message": message, "dimensions": {}}
-
-
-# --- band maximum -------------------------------------------------------------
-
-def band_maximum(peak_of_factors: Callable[[np.ndarray], np.ndarray], frequency_band: float,
-                 *, points: int = BAND_POINTS) -> float:
-    """Largest value of a peak response over structure frequency factors in [1 - b, 1 + b].
-
-    Parameters
-    ----------
-    peak_of_factors : callable
-        Array of factors s -> array of peak accelerations [m/s^2] (one
-        batched engine call).
-    frequency_band : float
-        Half-width b [-].
-    points : int
-        Grid points before refinement.
-
-    Returns
-    -------
-    float
-        The maximum [m/s^2].
-
-    Notes
-    -----
-    Grid search, then ``scipy.optimize.minimize_scalar`` (bounded) between
-    the worst point's neighbours, as :func:`tmd.robust.peak_acceleration_band_max`
-    does for a single TMD; this one takes any design through a callable.
-    """
-    s = factor_grid(frequency_band, points)
-    peak = np.asarray(peak_of_factors(s), float)
-    i = int(np.argmax(peak))
-    best = float(peak[i])
-    if s.size == 1:
-        return best
-    lo, hi = s[max(i - 1, 0)], s[min(i + 1, s.size - 1)]
-    res = minimize_scalar(lambda x: -float(np.asarray(peak_of_factors(np.array([x]))).ravel()[0]),
-                          bounds=(lo, hi), method="bounded", options={"xatol": 1e-7})
-    return max(best, float(-res.fun))

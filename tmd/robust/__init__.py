@@ -50,6 +50,7 @@ from tmd.robust.sweeps import (
     BandMaximum,
     StructureDamping,
     assess_structure_factors,
+    band_maximum,
     factor_grid,
     peak_acceleration_band_max,
     structure_damping_ratios,
@@ -61,7 +62,8 @@ from tmd.robust.sweeps import (
 __all__ = [
     "CHECK_BAND_POINTS", "DASHPOT_RANGE", "OPTIMISER_BAND_POINTS", "SPRING_RANGE",
     "SWEEP_RANGE", "AerodynamicDamping", "BandMaximum", "BandTuning", "RobustSizing",
-    "StructureDamping", "assess_structure_factors", "design_sweeps", "factor_grid",
+    "StructureDamping", "assess_structure_factors", "band_maximum", "design_sweeps",
+    "factor_grid",
     "peak_acceleration_band_max", "robust_design_block", "robust_least_mass",
     "robustness_study", "structure_damping_ratios", "sweep_damper_damping",
     "sweep_damper_frequency", "sweep_structure_frequency", "tune_for_band",

@@ -217,9 +217,39 @@ def peak_acceleration_band_max(case: LoadCase, damper: TunedMassDamper | None,
     (bounded) refines it between its grid neighbours. The maximum may lie at
     a band edge or inside the band.
     """
+    def peaks(factors):
+        a = assess_structure_factors(case, damper, factors, structure_damping_ratio)[0]
+        return a.peak_acceleration_m_s2
+
+    return band_maximum(peaks, frequency_band, points=points)
+
+
+def band_maximum(peak_of_factors: Callable[[np.ndarray], np.ndarray], frequency_band: float,
+                 *, points: int = BAND_SEARCH_POINTS) -> BandMaximum:
+    """Largest peak response of any design over structure frequency factors in [1 - b, 1 + b].
+
+    Parameters
+    ----------
+    peak_of_factors : callable
+        Array of factors s -> array of peak accelerations [m/s^2] (one
+        batched engine call).
+    frequency_band : float
+        Half-width b [-]; 0 gives the nominal value.
+    points : int
+        Grid points of the first search.
+
+    Returns
+    -------
+    BandMaximum
+
+    Notes
+    -----
+    A grid locates the worst point; ``scipy.optimize.minimize_scalar``
+    (bounded) refines it between its grid neighbours. The maximum may lie at
+    a band edge or inside the band.
+    """
     s = factor_grid(frequency_band, points)
-    peak = assess_structure_factors(case, damper, s, structure_damping_ratio)[0]
-    peak = peak.peak_acceleration_m_s2
+    peak = np.asarray(peak_of_factors(s), float)
     i = int(np.argmax(peak))
     best = BandMaximum(float(peak[i]), float(s[i]))
     if s.size == 1:
@@ -227,8 +257,7 @@ def peak_acceleration_band_max(case: LoadCase, damper: TunedMassDamper | None,
     lo, hi = s[max(i - 1, 0)], s[min(i + 1, s.size - 1)]
 
     def negative_peak(x):
-        a = assess_structure_factors(case, damper, np.array([x]), structure_damping_ratio)[0]
-        return -float(a.peak_acceleration_m_s2[0])
+        return -float(np.asarray(peak_of_factors(np.array([x])), float).ravel()[0])
 
     res = minimize_scalar(negative_peak, bounds=(lo, hi), method="bounded",
                           options={"xatol": 1e-7})
