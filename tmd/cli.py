@@ -19,6 +19,7 @@ from rich.markup import escape
 from rich.table import Table
 
 from tmd.case import CaseError, load_case
+from tmd.constants import STANDARD_GRAVITY
 from tmd.dampers.tmd import TunedMassDamper
 from tmd.design import DesignError
 from tmd.jobs import compare_job, design_job, evaluate_job, sweep_job, wind_job
@@ -30,7 +31,6 @@ app = typer.Typer(add_completion=False, no_args_is_help=True,
                   help="Size passive dampers for a wind-excited building mode.")
 out_console = Console(width=None if Console().is_terminal else 110)
 err_console = Console(stderr=True, width=None if Console(stderr=True).is_terminal else 110)
-G = 9.80665  # standard gravity, for milli-g on screen
 
 CaseArg = Annotated[Path, typer.Argument(help="Case file (TOML).", show_default=False)]
 
@@ -64,7 +64,7 @@ def _guarded(job):
 
 
 def _accel(value: float) -> str:
-    return f"{value:.4f} m/s² ({1000 * value / G:.1f} milli-g)"
+    return f"{value:.4f} m/s² ({1000 * value / STANDARD_GRAVITY:.1f} milli-g)"
 
 
 def _summary(result: dict) -> Table:

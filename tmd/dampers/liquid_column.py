@@ -54,13 +54,13 @@ import numpy as np
 from scipy.optimize import brentq
 from scipy.optimize.elementwise import find_root
 
+from tmd.constants import STANDARD_GRAVITY
 from tmd.dampers.absorber import Absorbers
 from tmd.design import LoadCase, bare_response, tune
 from tmd.performance import Assessment, assess
 from tmd.response import spectral_response
 from tmd.structure import Mode
 
-STANDARD_GRAVITY = 9.80665  # m/s^2
 WATER_DENSITY = 1000.0  # kg/m^3
 TWO_PI = 2.0 * math.pi
 _ZETA_BRACKET = (1e-5, 0.95)

@@ -39,9 +39,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from tmd.constants import STANDARD_GRAVITY
 from tmd.design import LoadCase, Sizing, TmdDesign, least_mass
-
-STANDARD_GRAVITY = 9.80665  # m/s^2
 
 
 @dataclass(frozen=True)

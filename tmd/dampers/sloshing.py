@@ -68,9 +68,9 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from tmd.constants import STANDARD_GRAVITY
 from tmd.dampers.absorber import Absorbers
 from tmd.dampers.liquid_column import (
-    STANDARD_GRAVITY,
     TWO_PI,
     WATER_DENSITY,
     CoupledSizing,

@@ -15,7 +15,8 @@ import numpy as np
 from matplotlib.figure import Figure
 from matplotlib.ticker import FuncFormatter
 
-G = 9.80665  # standard gravity [m/s^2], for the milli-g scale
+from tmd.constants import STANDARD_GRAVITY
+
 FIGSIZE_IN = (6.4, 3.9)  # legible at print size on A4 / Letter
 FONT_PT = 9
 BARE = "#6b6b6b"
@@ -69,8 +70,8 @@ def _plain_log_ticks(axis):
 
 
 def _milli_g_axis(ax):
-    sec = ax.secondary_yaxis("right", functions=(lambda a: 1000 * a / G,
-                                                 lambda mg: mg * G / 1000))
+    sec = ax.secondary_yaxis("right", functions=(lambda a: 1000 * a / STANDARD_GRAVITY,
+                                                 lambda mg: mg * STANDARD_GRAVITY / 1000))
     sec.set_ylabel("peak acceleration [milli-g]", fontsize=FONT_PT)
     sec.tick_params(labelsize=FONT_PT)
     _plain_log_ticks(sec.yaxis)

@@ -15,9 +15,10 @@ import io
 import math
 from dataclasses import dataclass, field
 
+from tmd.constants import STANDARD_GRAVITY
+
 SIGNIFICANT = 4
-G = 9.80665
-MILLI_G = 1000.0 / G
+MILLI_G = 1000.0 / STANDARD_GRAVITY
 UNIT_SUFFIXES = (  # longest first: the key's unit suffix and how it is printed
     ("_n_s_per_m", "N·s/m"), ("_n_per_m", "N/m"), ("_n2_per_hz", "N²/Hz"), ("_m_s2", "m/s²"),
     ("_m_s", "m/s"), ("_kg_m", "kg/m"), ("_hz", "Hz"), ("_kg", "kg"), ("_years", "years"),
