@@ -8,10 +8,11 @@ keys have none). Nothing here prints or writes files.
 from __future__ import annotations
 
 import warnings
+from collections.abc import Callable
 from dataclasses import asdict
 
 from tmd import __version__
-from tmd.case import Case, WindLoad
+from tmd.case import Case, RobustnessTable, WindLoad
 from tmd.dampers.tmd import TunedMassDamper
 from tmd.design import LoadCase, Sizing, TmdDesign, bare_response, evaluate_tmd, least_mass, tune
 
@@ -114,10 +115,20 @@ def size_damper(case: Case) -> Sizing:
         f"(peak {design.peak_acceleration_m_s2:.4g} m/s^2)"))
 
 
-def design_job(case: Case) -> dict:
-    """Bare response, sized TMD and the numbers of its specification."""
+def _with_notes(build: Callable[[], dict]) -> dict:
+    """Run a job's ``build``; add the warnings it raised and the cautions to its result."""
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always")
+        result = build()
+    result["warnings"] = list(dict.fromkeys(str(w.message) for w in caught))
+    result["cautions"] = list(CAUTIONS)
+    return result
+
+
+def design_job(case: Case) -> dict:
+    """Bare response, sized TMD and the numbers of its specification."""
+
+    def build():
         load = load_case_of(case)
         sizing = size_damper(case)
         result = _header(case) | {
@@ -131,9 +142,9 @@ def design_job(case: Case) -> dict:
             result["by_return_period"] = by_return_period(case, sizing.design)
         if case.tables.robustness is not None and sizing.design is not None:
             result |= robustness_block(case, sizing.design.damper)
-    result["warnings"] = _unique_messages(caught)
-    result["cautions"] = list(CAUTIONS)
-    return result
+        return result
+
+    return _with_notes(build)
 
 
 def _structure_damping(case: Case):
@@ -170,20 +181,18 @@ def sweep_job(case: Case, damper: TunedMassDamper) -> dict:
     """Detuning sweeps of any given design (e.g. an as-built damper)."""
     from tmd.robust import design_sweeps
 
-    r = case.tables.robustness
-    band = r.frequency_band if r is not None else 0.15
-    sweep_range = r.sweep_range if r is not None else 0.20
-    with warnings.catch_warnings(record=True) as caught:
-        warnings.simplefilter("always")
+    r = case.tables.robustness or RobustnessTable()
+
+    def build():
         load = load_case_of(case)
-        result = _header(case) | {
+        return _header(case) | {
             "target": _target_block(case),
             "design": design_block(evaluate_tmd(load, damper, case.target_peak_m_s2)),
-        } | design_sweeps(load, damper, frequency_band=band, sweep_range=sweep_range,
+        } | design_sweeps(load, damper, frequency_band=r.frequency_band,
+                          sweep_range=r.sweep_range,
                           structure_damping_ratio=_structure_damping(case))
-    result["warnings"] = _unique_messages(caught)
-    result["cautions"] = list(CAUTIONS)
-    return result
+
+    return _with_notes(build)
 
 
 def compare_job(case: Case) -> dict:
@@ -194,10 +203,10 @@ def compare_job(case: Case) -> dict:
     band = None if opts is None else opts.frequency_band
     if band is None:
         band = case.tables.robustness.frequency_band if case.tables.robustness else 0.1
-    with warnings.catch_warnings(record=True) as caught:
-        warnings.simplefilter("always")
+
+    def build():
         load = load_case_of(case)
-        result = _header(case) | {
+        return _header(case) | {
             "target": _target_block(case),
             "bare": _bare_block(load),
             "options_frequency_band": band,
@@ -206,15 +215,14 @@ def compare_job(case: Case) -> dict:
                 max_mass_ratio=case.damper.max_mass_ratio,
                 max_stroke_m=case.damper.max_stroke_m, frequency_band=band),
         }
-    result["warnings"] = _unique_messages(caught)
-    result["cautions"] = list(CAUTIONS)
-    return result
+
+    return _with_notes(build)
 
 
 def evaluate_job(case: Case, damper: TunedMassDamper) -> dict:
     """Responses of one given TMD design on the case."""
-    with warnings.catch_warnings(record=True) as caught:
-        warnings.simplefilter("always")
+
+    def build():
         load = load_case_of(case)
         design = evaluate_tmd(load, damper, case.target_peak_m_s2)
         result = _header(case) | {
@@ -224,13 +232,9 @@ def evaluate_job(case: Case, damper: TunedMassDamper) -> dict:
         }
         if case.wind_loads:
             result["by_return_period"] = by_return_period(case, design)
-    result["warnings"] = _unique_messages(caught)
-    result["cautions"] = list(CAUTIONS)
-    return result
+        return result
 
-
-def _unique_messages(caught) -> list[str]:
-    return list(dict.fromkeys(str(w.message) for w in caught))
+    return _with_notes(build)
 
 
 def wind_job(case: Case) -> dict:
