@@ -24,7 +24,6 @@ from tmd.dampers.tmd import TunedMassDamper
 from tmd.design import DesignError
 from tmd.jobs import compare_job, design_job, evaluate_job, sweep_job, wind_job
 from tmd.outputs import OutputError, to_json, write_all
-from tmd.report import progress_bar, render_report
 from tmd.response import NoFiniteResponse
 
 app = typer.Typer(add_completion=False, no_args_is_help=True,
@@ -147,6 +146,9 @@ def design(case: CaseArg,
 
 def _write(c, result, out, case_path):
     """results.json, the HTML report, figures and tables, all at once."""
+    # Imported here: matplotlib is only needed by the commands that write a report.
+    from tmd.report import progress_bar, render_report
+
     folder = out if out is not None else Path("out") / case_path.stem
     with progress_bar("Writing the report", console=err_console) as step:
         files = {"results.json": to_json(result)} | render_report(c, result, on_step=step)

@@ -52,7 +52,6 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, field
 
-import cvxpy as cp
 import numpy as np
 
 from tmd.dampers.absorber import Absorbers
@@ -248,7 +247,7 @@ def size_tmd_bank(case: LoadCase, target_peak_m_s2: float, *, max_mass_ratio: fl
         ), ())
     history = [_iterate(problem, mu, keep, 0.0, "start")]
     for _ in range(settings.max_iterations):
-        proposal, status = _convex_step(problem, mu, keep)
+        proposal, status, exact = _convex_step(problem, mu, keep)
         accepted = None
         step = 1.0
         for _ in range(MAX_BACKOFFS + 1):
@@ -259,7 +258,7 @@ def size_tmd_bank(case: LoadCase, target_peak_m_s2: float, *, max_mass_ratio: fl
                 break
             step *= 0.5
         if accepted is None:
-            if status != cp.OPTIMAL:
+            if not exact:
                 raise BankSolverError(
                     f"the convex step ended '{status}' and no step towards it passes the "
                     "engine's re-check")
@@ -306,7 +305,12 @@ def _feasible_start(problem: _Problem, n, max_mass_ratio):
 
 
 def _convex_step(problem: _Problem, mu, keep):
-    """One convex-concave step from mu; returns (proposed masses, solver status)."""
+    """One convex-concave step from mu.
+
+    Returns (proposed masses, solver status, whether the status is exactly optimal).
+    """
+    import cvxpy as cp  # here, not at module level: importing it takes ~1 s
+
     m = problem.case.mode
     c = problem.case
     idx = np.flatnonzero(keep)
@@ -354,7 +358,7 @@ def _convex_step(problem: _Problem, mu, keep):
             "the problem is badly scaled or the load spectrum is degenerate")
     proposal = np.zeros_like(mu)
     proposal[idx] = np.maximum(x.value, 0.0)
-    return proposal, prob.status
+    return proposal, prob.status, prob.status == cp.OPTIMAL
 
 
 def _iterate(problem, mu, keep, step, status) -> BankIterate:
