@@ -160,6 +160,18 @@ def evaluate_tmd(case: LoadCase, damper: TunedMassDamper,
     )
 
 
+def central_difference_points(x):
+    """x and x +/- the step along each axis: the 5 designs of one batched gradient."""
+    x = np.asarray(x, float)
+    return np.vstack([x, x + _STEP * np.eye(x.size), x - _STEP * np.eye(x.size)])
+
+
+def central_difference_gradient(values):
+    """Gradient from values at :func:`central_difference_points` (along axis 0)."""
+    n = (len(values) - 1) // 2
+    return (values[1:n + 1] - values[n + 1:]) / (2 * _STEP)
+
+
 class _TuningProblem:
     """Objective and stroke constraint with batched central-difference gradients."""
 
@@ -182,7 +194,7 @@ class _TuningProblem:
         x = np.asarray(x, float)
         if self._x is not None and np.array_equal(x, self._x):
             return
-        pts = np.vstack([x, x + _STEP * np.eye(2), x - _STEP * np.eye(2)])
+        pts = central_difference_points(x)
         m = self.case.mode
         a = self.case.assess(single_tmd(m.frequency_hz, m.modal_mass_kg, self.mu, pts[:, 0],
                                         np.exp(pts[:, 1])))
@@ -190,8 +202,8 @@ class _TuningProblem:
         stroke = a.peak_stroke_m[:, 0]
         self._x = x.copy()  # the optimiser may reuse and mutate its array
         self.value, self.stroke = value[0], stroke[0]
-        self.grad = (value[1:3] - value[3:5]) / (2 * _STEP)
-        self.stroke_grad = (stroke[1:3] - stroke[3:5]) / (2 * _STEP)
+        self.grad = central_difference_gradient(value)
+        self.stroke_grad = central_difference_gradient(stroke)
 
     def fun(self, x):
         self.evaluate(x)

@@ -27,6 +27,8 @@ from tmd.design import (
     DesignError,
     LoadCase,
     TmdDesign,
+    central_difference_gradient,
+    central_difference_points,
     evaluate_tmd,
     tune,
 )
@@ -45,7 +47,6 @@ EXCHANGE_ROUNDS = 4         # worst points added to the optimiser grid, at most
 # The robust search aims this much below the target so that the answer meets it
 # outright rather than to the root finder's tolerance (costs ~1e-6 of the mass).
 TARGET_MARGIN = 1e-6
-_STEP = 1e-6  # central-difference step in (f_d/f_s, ln zeta_d)
 
 
 @dataclass(frozen=True)
@@ -293,7 +294,7 @@ class _BandProblem:
         x = np.asarray(x, float)
         if self._x is not None and np.array_equal(x, self._x):
             return
-        pts = np.vstack([x, x + _STEP * np.eye(2), x - _STEP * np.eye(2)])
+        pts = central_difference_points(x)
         m = self.case.mode
         absorbers = Absorbers.tuned_masses(
             np.full((5, 1, 1), self.mu * m.modal_mass_kg),
@@ -307,8 +308,8 @@ class _BandProblem:
         self._x = x.copy()
         self.log_peak, self.stroke = log_peak[0], np.exp(log_stroke[0])
         self.log_stroke = log_stroke[0]
-        self.grad = ((log_peak[1:3] - log_peak[3:5]) / (2 * _STEP)).T
-        self.stroke_grad = ((log_stroke[1:3] - log_stroke[3:5]) / (2 * _STEP)).T
+        self.grad = central_difference_gradient(log_peak).T
+        self.stroke_grad = central_difference_gradient(log_stroke).T
 
     def constraint(self, z):
         self.evaluate(z[:2])
