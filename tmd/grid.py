@@ -116,9 +116,7 @@ def pole_grid(centre_hz, half_width_hz, f_min_hz=0.0, f_max_hz=np.inf, *,
 
 def _lower_tail(edge, f_min, n):
     """[f_min, edge]: log panels down to edge / TAIL_REACH, then one linear panel."""
-    far = np.clip(edge / TAIL_REACH, f_min, None)
-    if f_min > 0:
-        far = np.maximum(far, f_min)
+    far = np.maximum(edge / TAIL_REACH, f_min)
     cuts = far[..., None] * (edge / far)[..., None] ** (np.arange(TAIL_PANELS + 1) / TAIL_PANELS)
     parts = [_log_panel(cuts[..., i], cuts[..., i + 1], n) for i in range(TAIL_PANELS)]
     parts.append(_linear_panel(np.full_like(far, f_min), far, n))

@@ -131,11 +131,10 @@ def resonances(poles):
     (one of each conjugate pair; an overdamped pair contributes a pole at 0 Hz).
     """
     n = poles.shape[-1] // 2
-    top = np.sort(poles.imag, axis=-1)[..., n:]
     order = np.argsort(poles.imag, axis=-1)[..., n:]
-    real = np.take_along_axis(poles.real, order, axis=-1)
-    centre = np.maximum(top, 0.0) / TWO_PI
-    width = np.abs(real) / TWO_PI
+    top = np.take_along_axis(poles, order, axis=-1)
+    centre = np.maximum(top.imag, 0.0) / TWO_PI
+    width = np.abs(top.real) / TWO_PI
     scale = np.maximum(centre, width).max(axis=-1, keepdims=True)
     # Floors keep the maps finite for an overdamped or (nearly) undamped pole.
     return np.maximum(centre, 1e-9 * scale), np.maximum(width, 1e-12 * scale)
