@@ -317,11 +317,8 @@ def least_mass(case: LoadCase, target_peak_m_s2: float, *, max_mass_ratio: float
             f"acceleration is {design.peak_acceleration_m_s2:.4g} m/s^2 at mass ratio "
             f"{max_mass_ratio:g}, limited by {reason}"))
 
-    def gap(mu):
-        value = best(mu).value
-        return (value / target_peak_m_s2 - 1.0) if np.isfinite(value) else 1.0
-
-    mu = brentq(gap, min_mass_ratio, max_mass_ratio, xtol=1e-12, rtol=1e-10, maxiter=200)
+    mu = smallest_meeting_mass_ratio(lambda x: best(x).value, target_peak_m_s2,
+                                     min_mass_ratio, max_mass_ratio)
     tuning = best(mu)
     design = _design_at(case, mu, tuning, target_peak_m_s2)
     if abs(tuning.value / target_peak_m_s2 - 1.0) < 1e-4:
@@ -334,6 +331,32 @@ def least_mass(case: LoadCase, target_peak_m_s2: float, *, max_mass_ratio: float
         f"least mass ratio {mu:.5g} is set by the peak stroke limit of {max_stroke_m:g} m; "
         f"its peak acceleration {design.peak_acceleration_m_s2:.4g} m/s^2 is below the target "
         f"{target_peak_m_s2:.4g} m/s^2"))
+
+
+def smallest_meeting_mass_ratio(best_value, target, min_mass_ratio, max_mass_ratio) -> float:
+    """Smallest mass ratio whose best achievable value meets ``target``.
+
+    Parameters
+    ----------
+    best_value : callable
+        mu -> the least value [m/s^2] reachable at mass ratio mu (infinite
+        where no tuning is feasible); it falls as mu grows.
+    target : float
+        The value to reach [m/s^2].
+    min_mass_ratio, max_mass_ratio : float
+        Bracket [-]; ``best_value`` must exceed the target at the lower end
+        and meet it at the upper.
+
+    Notes
+    -----
+    Brent's method (``scipy.optimize.brentq``) on best(mu) / target - 1, an
+    infeasible mass counting as +1 (on the side that fails).
+    """
+    def gap(mu):
+        value = best_value(mu)
+        return value / target - 1.0 if np.isfinite(value) else 1.0
+
+    return brentq(gap, min_mass_ratio, max_mass_ratio, xtol=1e-12, rtol=1e-10, maxiter=200)
 
 
 def _design_at(case, mu, tuning: Tuning, target):

@@ -51,12 +51,11 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.optimize import brentq
 from scipy.optimize.elementwise import find_root
 
 from tmd.constants import STANDARD_GRAVITY
 from tmd.dampers.absorber import Absorbers
-from tmd.design import LoadCase, bare_response, tune
+from tmd.design import LoadCase, bare_response, smallest_meeting_mass_ratio, tune
 from tmd.performance import Assessment, assess
 from tmd.response import spectral_response
 from tmd.structure import Mode
@@ -272,11 +271,8 @@ def least_coupled_mass(case: LoadCase, target_peak_m_s2: float, coupling: float,
             f"the target {target_peak_m_s2:.4g} m/s^2 cannot be met within mass ratio "
             f"{max_mass_ratio:g} (limited by {reason})"))
 
-    def gap(mu):
-        value = best(mu)[1].value
-        return (value / target_peak_m_s2 - 1.0) if np.isfinite(value) else 1.0
-
-    mu = brentq(gap, min_mass_ratio, max_mass_ratio, xtol=1e-12, rtol=1e-10, maxiter=200)
+    mu = smallest_meeting_mass_ratio(lambda x: best(x)[1].value, target_peak_m_s2,
+                                     min_mass_ratio, max_mass_ratio)
     _, t = best(mu)
     governed = "target" if abs(t.value / target_peak_m_s2 - 1) < 1e-4 else "stroke"
     return sizing(mu, True, governed, f"least mass ratio {mu:.5g} meets the target "

@@ -17,7 +17,7 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.optimize import brentq, minimize
+from scipy.optimize import minimize
 
 from tmd.dampers.absorber import Absorbers
 from tmd.dampers.tmd import TunedMassDamper
@@ -30,6 +30,7 @@ from tmd.design import (
     central_difference_gradient,
     central_difference_points,
     evaluate_tmd,
+    smallest_meeting_mass_ratio,
     tune,
 )
 from tmd.performance import assess
@@ -265,11 +266,7 @@ def _robust_search(case, goal, target, band, grid, max_mu, min_mu, max_stroke_m,
             f"worst-case peak is {top.value:.4g} m/s^2 at mass ratio {max_mu:g}, limited by "
             f"{reason}"))
 
-    def gap(mu):
-        value = best(mu).value
-        return value / goal - 1.0 if np.isfinite(value) else 1.0
-
-    mu = brentq(gap, min_mu, max_mu, xtol=1e-12, rtol=1e-10, maxiter=200)
+    mu = smallest_meeting_mass_ratio(lambda x: best(x).value, goal, min_mu, max_mu)
     tuning = best(mu)
     if tuning.value < goal * (1 - 1e-4):
         # Below this mass no tuning holds the stroke within its limit.
