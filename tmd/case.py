@@ -224,7 +224,7 @@ def load_case(path: str | Path) -> Case:
     try:
         table = CaseTable.model_validate(raw)
     except ValidationError as exc:
-        raise CaseError(_describe(path, exc, raw)) from None
+        raise CaseError(_describe(path, exc)) from None
     mode = Mode(table.mode.frequency_hz, table.mode.modal_mass_kg, table.mode.damping_ratio)
     d = table.damper
     common = dict(
@@ -262,6 +262,7 @@ def _wind_case(path: Path, table: CaseTable, mode: Mode, common: dict) -> Case:
     except ValueError as exc:
         raise CaseError(f"{path}: [building]: {exc}") from None
     periods = sorted(set(w.return_periods_years) | {table.target.return_period_years})
+    z_s = float(reference_height(site, building))
     loads = []
     for period in periods:
         try:
@@ -272,7 +273,6 @@ def _wind_case(path: Path, table: CaseTable, mode: Mode, common: dict) -> Case:
         aero = (float(aerodynamic_damping_ratio(site, building, mode.modal_mass_kg,
                                                 mode.frequency_hz, period))
                 if w.aerodynamic_damping else 0.0)
-        z_s = float(reference_height(site, building))
         loads.append(WindLoad(period, spectrum, aero, float(site.mean_speed(z_s, period))))
     design = next(x for x in loads if x.return_period_years == table.target.return_period_years)
     return Case(spectrum=design.spectrum, input_files=(path.resolve(),), site=site,
@@ -293,7 +293,7 @@ def _read_toml(path: Path) -> dict:
         raise CaseError(f"{path}: not valid TOML: {exc}") from None
 
 
-def _describe(path: Path, exc: ValidationError, raw: dict) -> str:
+def _describe(path: Path, exc: ValidationError) -> str:
     lines = [_describe_one(path, err) for err in exc.errors()]
     return "\n".join(dict.fromkeys(lines))
 
@@ -345,11 +345,6 @@ _TABLES = {
     ("robustness",): RobustnessTable, ("robustness", "probabilistic"): ProbabilisticTable,
     ("options",): OptionsTable,
 }
-
-
-def register_table(loc: tuple[str, ...], model: type[BaseModel]) -> None:
-    """Let a table added by another module take part in key suggestions."""
-    _TABLES[loc] = model
 
 
 def _known_keys(loc: list[str]) -> list[str]:

@@ -139,7 +139,7 @@ def design(case: CaseArg,
     sizing = result["sizing"]
     colour = "green" if sizing["meets_target"] else "red"
     out_console.print(f"[{colour}]{escape(sizing['message'])}[/]", highlight=False)
-    _robustness_table(result)
+    _print_robustness(result)
     _print_notes(result)
     _write(c, result, out, case)
 
@@ -157,10 +157,11 @@ def _write(c, result, out, case_path):
                              "report.html, figures/, tables/)"), highlight=False, soft_wrap=True)
 
 
-def _robustness_table(result: dict) -> Table | None:
+def _print_robustness(result: dict) -> None:
+    """The nominal and robust designs across the band, and what robustness costs."""
     summary = result.get("robustness_summary")
     if summary is None:
-        return None
+        return
     band = result["frequency_band"]
     table = Table(title=f"robustness: structure frequency within ±{100 * band:g}%")
     table.add_column("design")
@@ -189,7 +190,6 @@ def _robustness_table(result: dict) -> Table | None:
                      + (f", robust {p['robust']['exceedance_probability']:.3f}"
                         if p.get("robust") else ""))
     out_console.print("; ".join(notes), highlight=False)
-    return None
 
 
 @app.command()
