@@ -129,3 +129,35 @@ def test_stroke_and_force_frequency_responses_satisfy_equilibrium():
     md, wd, w = mu * MASS, 2 * np.pi * ratio * FS, 2 * np.pi * f
     spring_dashpot = (md * wd**2 + 1j * w * 2 * zd * md * wd) * h["stroke"][..., 0]
     np.testing.assert_allclose(h["force"], spring_dashpot, rtol=1e-12)
+
+
+@pytest.mark.parametrize("zeta", [0.005, 0.02, 0.1])
+def test_sdof_first_moment_matches_vanmarcke_closed_form(zeta):
+    # Vanmarcke (1972), Properties of spectral moments with applications to
+    # random vibration, J. Eng. Mech. Div. 98(2): for an oscillator under white
+    # force, m1 / sqrt(m0 m2) = (1 - (2/pi) arctan(zeta / sqrt(1 - zeta^2)))
+    # / sqrt(1 - zeta^2) (from memory); checked here by adaptive quadrature too.
+    r = spectral_response(FS, MASS, zeta, Absorbers.none(), WhiteSpectrum(LEVEL))
+    root = np.sqrt(1 - zeta**2)
+    expected = (1 - 2 / np.pi * np.arctan(zeta / root)) / root
+    d = r.displacement
+    assert d.m1 / np.sqrt(d.m0 * d.m2) == pytest.approx(expected, rel=1e-7)
+    assert d.bandwidth == pytest.approx(np.sqrt(1 - expected**2), rel=1e-6)
+
+
+def test_first_moment_of_two_dof_stroke_matches_quadrature():
+    # (The acceleration's m1 diverges logarithmically under an f^-2 load.)
+    # Adaptive quadrature with the resonances as breakpoints (scipy.integrate.quad).
+    spectrum = FirstOrderSpectrum(LEVEL, 0.35)
+    tmd = single_tmd(FS, MASS, 0.02, 0.98, 0.06)
+    r = spectral_response(FS, MASS, 0.01, tmd, spectrum)
+
+    def integrand(f):
+        h = transfer_functions(np.array([f]), FS, MASS, 0.01, tmd)["stroke"][0, 0]
+        return f * abs(h) ** 2 * spectrum(f)
+
+    points = [0.17, 0.19, 0.2, 0.21, 0.23]
+    expected = sum(quad(integrand, lo, hi, epsabs=0, epsrel=1e-11, limit=400)[0]
+                   for lo, hi in zip([0.0, *points], [*points, 50.0], strict=True))
+    expected += quad(integrand, 50.0, np.inf, epsabs=0, epsrel=1e-11, limit=400)[0]
+    assert r.stroke.m1[..., 0] == pytest.approx(expected, rel=1e-7)

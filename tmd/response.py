@@ -40,10 +40,17 @@ class NoFiniteResponse(ValueError):
 
 @dataclass(frozen=True)
 class Moments:
-    """Spectral moments m0 [unit^2] and m2 [unit^2 Hz^2] of one response."""
+    """Spectral moments of one response.
+
+    m0 [unit^2], m2 [unit^2 Hz^2] and m1 [unit^2 Hz], m_k = integral of
+    f^k S(f) df. m1 feeds Vanmarcke's bandwidth parameter
+    q = sqrt(1 - m1^2 / (m0 m2)) (:mod:`tmd.peak`); it is optional so that a
+    caller that needs only sigma and the up-crossing rate may leave it out.
+    """
 
     m0: np.ndarray
     m2: np.ndarray
+    m1: np.ndarray | None = None
 
     @property
     def sigma(self) -> np.ndarray:
@@ -54,6 +61,13 @@ class Moments:
     def upcrossing_hz(self) -> np.ndarray:
         """Mean zero up-crossing rate nu = sqrt(m2 / m0) [Hz]."""
         return np.sqrt(self.m2 / self.m0)
+
+    @property
+    def bandwidth(self) -> np.ndarray:
+        """Vanmarcke's bandwidth parameter q = sqrt(1 - m1^2 / (m0 m2)) [-]."""
+        if self.m1 is None:
+            raise ValueError("these moments were computed without m1")
+        return np.sqrt(np.clip(1.0 - self.m1**2 / (self.m0 * self.m2), 0.0, 1.0))
 
 
 @dataclass(frozen=True)
@@ -222,14 +236,14 @@ def spectral_response(frequency_hz, modal_mass_kg, damping_ratio, absorbers: Abs
                                    (frequency_hz, modal_mass_kg, damping_ratio)),
                            _broadcast_absorbers(absorbers, batch))
     load = weight * spectrum(grid)
-    f2 = grid**2
+    load1 = load * grid
+    load2 = load1 * grid
 
     def moments(transfer, axis_extra=False):
         power = np.abs(transfer) ** 2
         if axis_extra:
-            w0, w2 = load[..., None], (load * f2)[..., None]
-            return Moments(np.sum(power * w0, axis=-2), np.sum(power * w2, axis=-2))
-        return Moments(np.sum(power * load, axis=-1), np.sum(power * load * f2, axis=-1))
+            return Moments(*(np.sum(power * w[..., None], axis=-2) for w in (load, load2, load1)))
+        return Moments(*(np.sum(power * w, axis=-1) for w in (load, load2, load1)))
 
     acc = moments(h["acceleration"])
     return SpectralResponse(
