@@ -7,6 +7,7 @@ from pathlib import Path
 import pytest
 from typer.testing import CliRunner
 
+from tests.consistency import assert_consistent_results
 from tmd.cli import app
 
 CASES = Path(__file__).resolve().parents[1] / "cases"
@@ -25,6 +26,7 @@ def test_design_writes_results_with_the_documented_keys(design_run):
     result, out = design_run
     assert result.exit_code == 0, result.output
     data = json.loads((out / "results.json").read_text())
+    assert_consistent_results(data)
     for key in ("tool_version", "schema_version", "case", "bare", "design", "target"):
         assert key in data
     assert set(data["bare"]) >= {"sigma_acceleration_m_s2", "peak_acceleration_m_s2",
@@ -48,6 +50,7 @@ def test_evaluate_json_matches_design_block(design_run):
                                  "--frequency-ratio", repr(d["frequency_ratio"]),
                                  "--damping-ratio", repr(d["damping_ratio"]), "--json"])
     assert result.exit_code == 0, result.output
+    assert_consistent_results(json.loads(result.stdout))
     again = json.loads(result.stdout)["design"]
     # Same design through the same engine: equal to rounding.
     for key in ("peak_acceleration_m_s2", "peak_stroke_m", "effective_damping_ratio"):
@@ -62,6 +65,7 @@ def test_unmet_target_still_exits_zero(tmp_path):
     result = runner.invoke(app, ["design", str(tmp_path / "c.toml"), "--out", str(tmp_path / "o")])
     assert result.exit_code == 0, result.output
     data = json.loads((tmp_path / "o" / "results.json").read_text())
+    assert_consistent_results(data)
     assert data["design"]["meets_target"] is False
     assert "cannot be met" in result.output
 

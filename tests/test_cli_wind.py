@@ -6,6 +6,7 @@ from pathlib import Path
 import pytest
 from typer.testing import CliRunner
 
+from tests.consistency import assert_consistent_results
 from tmd.case import CaseError, load_case
 from tmd.cli import app
 
@@ -47,6 +48,7 @@ def _write(tmp_path, text):
 def test_wind_command_reports_annex_b_and_spectral_route(tmp_path):
     result = runner.invoke(app, ["wind", str(_write(tmp_path, WIND)), "--json"])
     assert result.exit_code == 0, result.output
+    assert_consistent_results(json.loads(result.stdout))
     rows = json.loads(result.stdout)["return_periods"]
     assert [r["return_period_years"] for r in rows] == [1.0, 50.0]
     keys = {"reference_height_m", "mean_speed_m_s", "turbulence_intensity", "length_scale_m",
@@ -73,6 +75,7 @@ def test_design_reports_every_return_period(tmp_path):
     result = runner.invoke(app, ["design", str(_write(tmp_path, WIND)), "--out", str(out)])
     assert result.exit_code == 0, result.output
     data = json.loads((out / "results.json").read_text())
+    assert_consistent_results(data)
     rows = data["by_return_period"]
     assert [r["return_period_years"] for r in rows] == [1.0, 50.0]
     # The design return period's row is the design itself.
@@ -112,12 +115,16 @@ def test_heights_outside_the_building_exit_two(tmp_path):
 def test_compare_lists_every_option_and_its_tmd_row_equals_design(tmp_path):
     result = runner.invoke(app, ["compare", str(HARBOUR), "--out", str(tmp_path / "c")])
     assert result.exit_code == 0, result.output
-    options = json.loads((tmp_path / "c" / "results.json").read_text())["options"]
+    compared = json.loads((tmp_path / "c" / "results.json").read_text())
+    assert_consistent_results(compared)
+    options = compared["options"]
     names = [o["option"] for o in options]
     assert names == ["tmd", "pendulum", "tmd-bank", "liquid-column", "sloshing-tank", "viscous"]
     design = runner.invoke(app, ["design", str(HARBOUR), "--out", str(tmp_path / "d")])
     assert design.exit_code == 0
-    d = json.loads((tmp_path / "d" / "results.json").read_text())["design"]
+    designed = json.loads((tmp_path / "d" / "results.json").read_text())
+    assert_consistent_results(designed)
+    d = designed["design"]
     # Same least-mass search on the same case: equal to the solver's tolerance.
     assert options[0]["mass_kg"] == pytest.approx(d["mass_kg"], rel=1e-9)
 
@@ -130,6 +137,7 @@ def test_sweep_from_results_at_nominal_equals_the_design(tmp_path):
                                  str(out / "results.json"), "--json"])
     assert result.exit_code == 0, result.output
     data = json.loads(result.stdout)
+    assert_consistent_results(data)
     at_one = [p for p in data["sweep"] if p["structure_frequency_factor"] == 1.0]
     assert len(at_one) == 1
     # The sweep at s = 1 is the nominal evaluation (issue 4's identity).

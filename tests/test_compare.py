@@ -4,6 +4,7 @@ import warnings
 
 import pytest
 
+from tests.consistency import assert_consistent_results
 from tmd.case import load_case
 from tmd.compare import OPTIONS, compare_options
 from tmd.jobs import design_job, load_case_of
@@ -45,7 +46,9 @@ def test_tmd_row_equals_the_design_job(rows):
     case, result = rows
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
-        design = design_job(case)["design"]
+        designed = design_job(case)
+    assert_consistent_results(designed)
+    design = designed["design"]
     row = result[0]
     for key in ("mass_kg", "peak_acceleration_m_s2", "peak_stroke_m", "peak_damper_force_n",
                 "effective_damping_ratio"):
@@ -55,6 +58,8 @@ def test_tmd_row_equals_the_design_job(rows):
 
 def test_verdicts_agree_with_the_numbers_and_the_band_is_no_better(rows):
     case, result = rows
+    assert_consistent_results({"target": {"peak_acceleration_m_s2": case.target_peak_m_s2},
+                               "options": result})
     for r in result:
         if r["meets_target"]:
             assert r["peak_acceleration_m_s2"] <= case.target_peak_m_s2 * (1 + 1e-4)

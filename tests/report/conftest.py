@@ -6,6 +6,7 @@ from pathlib import Path
 
 import pytest
 
+from tests.consistency import assert_consistent_results
 from tests.report.synthetic import DEMO_CASE, full_results
 from tmd.case import load_case
 from tmd.jobs import design_job
@@ -26,6 +27,7 @@ def as_written(results: dict) -> dict:
 def case_report(request):
     case = load_case(request.param)
     results = design_job(case)
+    assert_consistent_results(as_written(results))
     return case, as_written(results), render_report(case, results, dpi=TEST_DPI)
 
 
