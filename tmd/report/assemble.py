@@ -22,6 +22,7 @@ from tmd.report.tables import (
     MILLI_G,
     Cell,
     Table,
+    across_table,
     by_period_table,
     csv_bytes,
     key_value_table,
@@ -405,8 +406,11 @@ class _Report:
 
     def options_section(self) -> Section:
         options = self.results["options"]
-        blocks = [self._table(record_table("options", "Damper options compared", options,
-                                           "options"))]
+        blocks = [self._table(across_table(
+            "options", "Damper options compared (one column per option)", options, "options",
+            column_key="option", skip=("dampers", "message"))),
+            self._table(record_table("options_outcome", "What each option's sizing found",
+                                     options, "options", columns=("option", "message")))]
         for i, option in enumerate(options):
             if option.get("dampers"):
                 blocks.append(self._table(record_table(

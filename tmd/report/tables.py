@@ -21,7 +21,7 @@ SIGNIFICANT = 4
 MILLI_G = 1000.0 / STANDARD_GRAVITY
 UNIT_SUFFIXES = (  # longest first: the key's unit suffix and how it is printed
     ("_n_s_per_m", "N·s/m"), ("_n_per_m", "N/m"), ("_n2_per_hz", "N²/Hz"), ("_m_s2", "m/s²"),
-    ("_m_s", "m/s"), ("_kg_m", "kg/m"), ("_hz", "Hz"), ("_kg", "kg"), ("_years", "years"),
+    ("_m_s", "m/s"), ("_kg_m", "kg/m"), ("_m2", "m²"), ("_rad", "rad"), ("_hz", "Hz"), ("_kg", "kg"), ("_years", "years"),
     ("_n", "N"), ("_m", "m"), ("_s", "s"),
 )
 LABELS = {
@@ -186,35 +186,91 @@ def record_table(name: str, title: str, records: list[dict], path: str, *, colum
 
 def by_period_table(name: str, title: str, entries: list[dict], path: str, *,
                     note: str = "") -> Table:
-    """Quantities down, return periods across, for a list of per-return-period records."""
+    """Quantities down, return periods across, for a list of per-return-period records.
+
+    Parameters
+    ----------
+    name, title : str
+        Table file name and heading.
+    entries : list of dict
+        Per-return-period records, each with ``return_period_years`` [years].
+    path : str
+        Key path of ``entries`` in results.json.
+    note : str
+        Text under the table.
+
+    Returns
+    -------
+    Table
+    """
+    return across_table(name, title + " (return period [years] across)", entries, path,
+                        column_key="return_period_years", note=note)
+
+
+def across_table(name: str, title: str, entries: list[dict], path: str, *, column_key: str,
+                 skip: tuple[str, ...] = (), note: str = "") -> Table:
+    """Quantities down, one column per record (headed by its ``column_key`` value).
+
+    A narrow, tall table: it fits a printed page however many quantities the
+    records hold, where one row per record with a column per quantity would not.
+
+    Parameters
+    ----------
+    name, title : str
+        Table file name and heading.
+    entries : list of dict
+        The records (nested dicts are flattened to dotted key paths).
+    path : str
+        Key path of ``entries`` in results.json.
+    column_key : str
+        The key whose value heads each record's column.
+    skip : tuple of str
+        Top-level keys left out (shown in tables of their own).
+    note : str
+        Text under the table.
+
+    Returns
+    -------
+    Table
+    """
     header = [Cell("quantity"), Cell("unit")] + [
-        Cell(e.get("return_period_years"), f"{path}.{i}.return_period_years")
-        for i, e in enumerate(entries)]
+        Cell(e.get(column_key), f"{path}.{i}.{column_key}") for i, e in enumerate(entries)]
     leaves: list[str] = []
     for entry in entries:
-        leaves += [p for p, _, _ in flatten(entry, "") if p not in leaves
-                   and p != "return_period_years"]
+        shown = {k: v for k, v in entry.items() if k not in skip}
+        leaves += [p for p, _, _ in flatten(shown, "") if p not in leaves and p != column_key]
     rows = []
     for leaf in leaves:
-        label, unit = label_and_unit(leaf.rsplit(".", 1)[-1])
-        if "." in leaf:
-            label = f"{path_label(leaf.rsplit('.', 1)[0])}: {label}"
+        stem, _, last = leaf.rpartition(".")
+        if last.isdigit():  # an item of a list of numbers: name it by its list and position
+            stem, _, last = stem.rpartition(".")
+            label, unit = label_and_unit(last)
+            label = f"{label} {int(leaf.rsplit('.', 1)[1]) + 1}"
+        else:
+            label, unit = label_and_unit(last)
+        if stem:
+            label = f"{path_label(stem)}: {label}"
         cells = [Cell(label), Cell(unit)]
         for i, entry in enumerate(entries):
-            cells.append(Cell(_lookup(entry, leaf), f"{path}.{i}.{leaf}"))
+            value = _lookup(entry, leaf)
+            # a quantity this record does not have is left blank, not shown as a null
+            cells.append(Cell("") if value is _ABSENT else Cell(value, f"{path}.{i}.{leaf}"))
         rows.append(cells)
-    return Table(name, title + " (return period [years] across)", header, rows, note)
+    return Table(name, title, header, rows, note)
+
+
+_ABSENT = object()
 
 
 def _lookup(block, dotted: str):
     for part in dotted.split("."):
         if isinstance(block, list):
             index = int(part)
-            block = block[index] if index < len(block) else None
+            block = block[index] if index < len(block) else _ABSENT
         elif isinstance(block, dict):
-            block = block.get(part)
+            block = block.get(part, _ABSENT)
         else:
-            return None
+            return _ABSENT
     return block
 
 
