@@ -22,7 +22,15 @@ from tmd.case import CaseError, load_case
 from tmd.constants import STANDARD_GRAVITY
 from tmd.dampers.tmd import TunedMassDamper
 from tmd.design import DesignError
-from tmd.jobs import compare_job, design_job, evaluate_job, sweep_job, wind_job
+from tmd.jobs import (
+    CAUTIONS,
+    compare_job,
+    design_job,
+    evaluate_job,
+    retune_job,
+    sweep_job,
+    wind_job,
+)
 from tmd.outputs import OutputError, to_json, write_all
 from tmd.response import NoFiniteResponse
 
@@ -192,18 +200,29 @@ def _print_robustness(result: dict) -> None:
     out_console.print("; ".join(notes), highlight=False)
 
 
+MassKg = Annotated[float | None, typer.Option(
+    "--damper-mass-kg", help="Built damper mass m_d [kg] (instead of the ratios).")]
+StiffnessNPerM = Annotated[float | None, typer.Option(
+    "--damper-stiffness-n-per-m", help="Built damper spring k_d [N/m].")]
+DampingNSPerM = Annotated[float | None, typer.Option(
+    "--damper-damping-n-s-per-m", help="Built damper dashpot c_d [N·s/m].")]
+
+
 @app.command()
 @_guarded
 def evaluate(case: CaseArg,
-             mass_ratio: Annotated[float, typer.Option(help="m_d / M* [-].")],
-             frequency_ratio: Annotated[float, typer.Option(help="f_d / f_s [-].")],
-             damping_ratio: Annotated[float, typer.Option(
-                 help="Damper damping ratio, referred to f_d [-].")],
+             mass_ratio: Annotated[float | None, typer.Option(help="m_d / M* [-].")] = None,
+             frequency_ratio: Annotated[float | None, typer.Option(help="f_d / f_s [-].")] = None,
+             damping_ratio: Annotated[float | None, typer.Option(
+                 help="Damper damping ratio, referred to f_d [-].")] = None,
+             damper_mass_kg: MassKg = None, damper_stiffness_n_per_m: StiffnessNPerM = None,
+             damper_damping_n_s_per_m: DampingNSPerM = None,
              json_output: Annotated[bool, typer.Option(
                  "--json", help="Print {\"design\": {...}} as JSON only.")] = False):
     """Responses of one given TMD design (a proposed or as-built damper)."""
     c = load_case(case)
-    damper = _damper_from_options(mass_ratio, frequency_ratio, damping_ratio)
+    damper = _design_from(c, None, (mass_ratio, frequency_ratio, damping_ratio),
+                          (damper_mass_kg, damper_stiffness_n_per_m, damper_damping_n_s_per_m))
     result = evaluate_job(c, damper)
     if json_output:
         typer.echo(to_json({"design": result["design"]}), nl=False)
@@ -306,10 +325,13 @@ def sweep(case: CaseArg,
           frequency_ratio: Annotated[float | None, typer.Option(help="f_d / f_s [-].")] = None,
           damping_ratio: Annotated[float | None, typer.Option(
               help="Damper damping ratio, referred to f_d [-].")] = None,
+          damper_mass_kg: MassKg = None, damper_stiffness_n_per_m: StiffnessNPerM = None,
+          damper_damping_n_s_per_m: DampingNSPerM = None,
           json_output: Annotated[bool, typer.Option("--json", help="Print JSON only.")] = False):
     """Detuning sweeps of a given design (e.g. an as-built damper)."""
     c = load_case(case)
-    damper = _design_from(design_from, mass_ratio, frequency_ratio, damping_ratio)
+    damper = _design_from(c, design_from, (mass_ratio, frequency_ratio, damping_ratio),
+                          (damper_mass_kg, damper_stiffness_n_per_m, damper_damping_n_s_per_m))
     result = sweep_job(c, damper)
     if json_output:
         typer.echo(to_json(result), nl=False)
@@ -329,18 +351,157 @@ def sweep(case: CaseArg,
     _print_notes(result)
 
 
-def _design_from(path, mass_ratio, frequency_ratio, damping_ratio) -> TunedMassDamper:
-    given = [v is not None for v in (mass_ratio, frequency_ratio, damping_ratio)]
+RATIO_OPTIONS = ("--mass-ratio", "--frequency-ratio", "--damping-ratio")
+PROPERTY_OPTIONS = ("--damper-mass-kg", "--damper-stiffness-n-per-m",
+                    "--damper-damping-n-s-per-m")
+
+
+def _design_from(c, path, ratios, properties) -> TunedMassDamper:
+    """The damper to evaluate: a results.json design, three ratios or three built properties."""
+    chosen = [name for name, given in (
+        ("--design-from", path is not None),
+        ("the ratio options", any(v is not None for v in ratios)),
+        ("the --damper-... options", any(v is not None for v in properties))) if given]
+    if len(chosen) > 1:
+        raise CaseError(f"give one way of describing the damper, not {' and '.join(chosen)}")
     if path is not None:
-        if any(given):
-            raise CaseError("give either --design-from or the three design options, not both")
+        d = _design_block(path)
         try:
-            d = json.loads(Path(path).read_text(encoding="utf-8"))["design"]
-            return _damper_from_options(d["mass_ratio"], d["frequency_ratio"],
-                                        d["damping_ratio"])
-        except (OSError, ValueError, KeyError, TypeError) as exc:
-            raise CaseError(f"{path}: not a results.json with a design block ({exc})") from None
-    if not all(given):
-        raise CaseError("give --design-from results.json, or all of --mass-ratio, "
-                        "--frequency-ratio and --damping-ratio")
-    return _damper_from_options(mass_ratio, frequency_ratio, damping_ratio)
+            return _damper_from_options(d["mass_ratio"], d["frequency_ratio"], d["damping_ratio"])
+        except (KeyError, TypeError) as exc:
+            raise CaseError(f"{path}: the design block lacks {exc}") from None
+    if any(v is not None for v in properties):
+        missing = [n for n, v in zip(PROPERTY_OPTIONS, properties, strict=True) if v is None]
+        if missing:
+            raise CaseError(f"give all of {', '.join(PROPERTY_OPTIONS)} (missing "
+                            f"{', '.join(missing)})")
+        return _built_damper(*properties).on(c.mode)
+    missing = [n for n, v in zip(RATIO_OPTIONS, ratios, strict=True) if v is None]
+    if missing:
+        raise CaseError("give --design-from results.json, all of --mass-ratio, "
+                        "--frequency-ratio and --damping-ratio, or all of "
+                        f"{', '.join(PROPERTY_OPTIONS)} (missing {', '.join(missing)})")
+    return _damper_from_options(*ratios)
+
+
+def _built_damper(mass_kg, stiffness_n_per_m, damping_n_s_per_m):
+    from tmd.retune import BuiltDamper
+
+    try:
+        return BuiltDamper(mass_kg, stiffness_n_per_m, damping_n_s_per_m)
+    except ValueError as exc:
+        raise CaseError(f"--damper-...: {exc}") from None
+
+
+def _design_block(path: Path) -> dict:
+    """The design block of a results.json (the recommended design where one is given)."""
+    try:
+        data = json.loads(Path(path).read_text(encoding="utf-8"))
+    except (OSError, ValueError) as exc:
+        raise CaseError(f"{path}: not a readable results.json ({exc})") from None
+    block = data.get("design") if isinstance(data, dict) else None
+    if not isinstance(block, dict):
+        raise CaseError(f"{path}: not a results.json with a design block")
+    return block
+
+
+@app.command()
+@_guarded
+def retune(case: CaseArg,
+           design_from: Annotated[Path, typer.Option(
+               help="results.json whose design block is the damper as built.")],
+           measured_frequency_hz: Annotated[float, typer.Option(
+               help="Measured natural frequency of the structure [Hz].")],
+           measured_damping_ratio: Annotated[float | None, typer.Option(
+               help="Measured total damping ratio, damper locked [-] (default: the case's).")
+           ] = None,
+           measured_modal_mass_kg: Annotated[float | None, typer.Option(
+               help="Measured modal mass M* [kg] (default: the case's).")] = None,
+           json_output: Annotated[bool, typer.Option(
+               "--json", help="Print {\"retuned\": {...}} as JSON only.")] = False):
+    """Re-tune the built damper to the measured structure (its mass kept)."""
+    c = load_case(case)
+    d = _design_block(design_from)
+    try:
+        installed = _built_damper(d["mass_kg"], d["stiffness_n_per_m"], d["damping_n_s_per_m"])
+    except KeyError as exc:
+        raise CaseError(f"{design_from}: the design block lacks {exc}") from None
+    result = retune_job(c, installed, measured_frequency_hz, damping_ratio=measured_damping_ratio,
+                        modal_mass_kg=measured_modal_mass_kg)
+    if json_output:
+        typer.echo(to_json(result), nl=False)
+        return
+    r = result["retuned"]
+    s = r["structure"]
+    table = Table(title=f"{c.name}: re-tuning to the measured structure")
+    for name in ("quantity", "as installed", "re-tuned", "specified range"):
+        table.add_column(name, justify="right")
+    inst = r["installed"]
+    table.add_row("damper frequency", f"{inst['frequency_hz']:.4f} Hz",
+                  f"{r['frequency_hz']:.4f} Hz",
+                  f"{r['adjustment_frequency_min_hz']:.4f} .. "
+                  f"{r['adjustment_frequency_max_hz']:.4f} Hz")
+    table.add_row("spring stiffness", f"{inst['stiffness_n_per_m'] / 1000:,.1f} kN/m",
+                  f"{r['stiffness_n_per_m'] / 1000:,.1f} kN/m",
+                  f"{r['adjustment_stiffness_min_n_per_m'] / 1000:,.1f} .. "
+                  f"{r['adjustment_stiffness_max_n_per_m'] / 1000:,.1f} kN/m")
+    table.add_row("damper damping ratio", f"{inst['damping_ratio']:.4f}",
+                  f"{r['damping_ratio']:.4f}", "")
+    table.add_row("dashpot coefficient", f"{inst['damping_n_s_per_m'] / 1000:,.2f} kN·s/m",
+                  f"{r['damping_n_s_per_m'] / 1000:,.2f} kN·s/m", "")
+    table.add_row("peak acceleration", _accel(r["peak_acceleration_before_m_s2"]),
+                  _accel(r["peak_acceleration_after_m_s2"]), "")
+    table.add_row("peak stroke", f"{r['peak_stroke_before_m']:.3f} m",
+                  f"{r['peak_stroke_after_m']:.3f} m", "")
+    out_console.print(table)
+    verdict = ("within" if r["within_adjustment_range"] else "OUTSIDE")
+    out_console.print(
+        f"measured structure: f = {s['frequency_hz']:.4f} Hz, M* = {s['modal_mass_kg']:,.0f} kg, "
+        f"damping {s['structural_damping_ratio']:.4f} ({s['damping_source']}) + aerodynamic "
+        f"{s['aerodynamic_damping_ratio']:.4f} at the design wind; the re-tuned damper is "
+        f"{verdict} the specified adjustment range (±{100 * r['adjustment_band']:g}%)",
+        highlight=False)
+    out_console.print("[dim]" + escape(r["damping_note"]) + "[/]", highlight=False)
+    for message in r["warnings"]:
+        err_console.print(f"[yellow]warning:[/] {escape(message)}", highlight=False)
+    out_console.print("[dim]Cautions: " + escape(" ".join(r["cautions"])) + "[/]",
+                      highlight=False)
+
+
+@app.command()
+@_guarded
+def identify(record: Annotated[Path, typer.Argument(
+                 help="CSV record, header time_s,acceleration_m_s2.", show_default=False)],
+             min_frequency_hz: Annotated[float | None, typer.Option(
+                 help="Look for the mode above this frequency [Hz].")] = None,
+             max_frequency_hz: Annotated[float | None, typer.Option(
+                 help="Look for the mode below this frequency [Hz].")] = None,
+             json_output: Annotated[bool, typer.Option("--json", help="Print JSON only.")] = False):
+    """Frequency and damping of the mode from an ambient acceleration record (damper locked)."""
+    from tmd.identify import identify_mode, read_acceleration_record
+
+    result = identify_mode(read_acceleration_record(record), min_frequency_hz=min_frequency_hz,
+                           max_frequency_hz=max_frequency_hz).as_dict()
+    if json_output:
+        typer.echo(to_json(result), nl=False)
+        return
+    table = Table(title=f"{record.name}: identified mode ({result['duration_s']:.0f} s record)")
+    for name in ("method", "frequency", "damping ratio"):
+        table.add_column(name, justify="right")
+    for m in result["methods"]:
+        table.add_row(m["method"], f"{m['frequency_hz']:.5f} Hz", f"{m['damping_ratio']:.5f}")
+    table.add_row("reported", f"{result['frequency_hz']:.5f} Hz", f"{result['damping_ratio']:.5f}")
+    out_console.print(table)
+    out_console.print(
+        f"spread between the methods: frequency {100 * result['frequency_spread']:.2f}%, damping "
+        f"{100 * result['damping_spread']:.1f}%; expected random error for this record (Au's "
+        f"law): frequency {100 * result['predicted_frequency_cov']:.2f}%, damping "
+        f"{100 * result['predicted_damping_cov']:.0f}%", highlight=False)
+    out_console.print(escape(f"use: tmd retune CASE --design-from results.json "
+                             f"--measured-frequency-hz {result['frequency_hz']:.6g} "
+                             f"--measured-damping-ratio {result['damping_ratio']:.6g}"),
+                      highlight=False, soft_wrap=True)
+    out_console.print("[dim]" + escape(result["damping_note"]) + "[/]", highlight=False)
+    for message in result["warnings"]:
+        err_console.print(f"[yellow]warning:[/] {escape(message)}", highlight=False)
+    out_console.print("[dim]Cautions: " + escape(" ".join(CAUTIONS)) + "[/]", highlight=False)
