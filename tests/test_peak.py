@@ -10,6 +10,8 @@ from tmd.peak import (
     davenport_peak_factor,
     eurocode_peak_factor,
     peak_factor_is_held,
+    vanmarcke_distribution,
+    vanmarcke_peak_factor,
 )
 
 
@@ -44,3 +46,44 @@ def test_eurocode_peak_factor_has_floor_of_three():
     # nu = 0.2, T = 600: 3.0944 + 0.6 / 3.0944 = 3.2883.
     assert eurocode_peak_factor(0.2, 600.0) == pytest.approx(3.2883, abs=1e-4)
     assert eurocode_peak_factor(0.001, 600.0) == 3.0
+
+
+def _poisson_mean_maximum(crossings):
+    # Rice's Poisson crossings: P(max <= r sigma) = exp(-n exp(-r^2 / 2)) for
+    # n crossings of zero in T; the mean is the integral of 1 - P over r,
+    # here by adaptive quadrature (scipy.integrate.quad).
+    from scipy.integrate import quad
+    return quad(lambda r: -np.expm1(-crossings * np.exp(-0.5 * r * r)), 0, 40,
+                epsabs=0, epsrel=1e-12, limit=200)[0]
+
+
+@pytest.mark.parametrize("two_sided", [False, True])
+def test_vanmarcke_broadband_limit_is_rices_poisson_law(two_sided):
+    # With q = 1 every envelope crossing carries a crossing, so Vanmarcke's
+    # law tends to the Poisson law at high levels; the small difference near
+    # the mean comes from the (1 - exp(-r^2/2)) start factor and the finite
+    # exp(-b r) share (Vanmarcke 1975, from memory), 0.3% at nu T = 1000.
+    nu, t = 1.0, 1000.0
+    g = vanmarcke_peak_factor(nu, 1.0, t, two_sided=two_sided)
+    expected = _poisson_mean_maximum((2 if two_sided else 1) * nu * t)
+    assert g == pytest.approx(expected, rel=3e-3)
+
+
+def test_vanmarcke_narrow_band_peaks_fall_below_davenport():
+    # Clumped up-crossings of a narrow-band response lower the mean maximum
+    # (Vanmarcke 1975); the factor grows monotonically with q toward Rice's law.
+    q = np.array([0.05, 0.1, 0.2, 0.4, 0.8, 1.0])
+    g = vanmarcke_peak_factor(0.2, q, 600.0, two_sided=False)
+    assert np.all(np.diff(g) > 0)
+    assert g[0] < 0.9 * davenport_peak_factor(0.2, 600.0)
+
+
+def test_vanmarcke_distribution_is_a_distribution():
+    r = np.linspace(0.0, 10.0, 401)
+    for two_sided in (False, True):
+        f = vanmarcke_distribution(r, 0.2, 0.15, 600.0, two_sided=two_sided)
+        assert f[0] == 0.0 and f[-1] == pytest.approx(1.0, abs=1e-12)
+        assert np.all(np.diff(f) >= -1e-15)
+    # The double barrier is crossed at least as often as the single one.
+    assert np.all(vanmarcke_distribution(r, 0.2, 0.15, 600.0, two_sided=True)
+                  <= vanmarcke_distribution(r, 0.2, 0.15, 600.0, two_sided=False) + 1e-15)
