@@ -30,29 +30,48 @@ from tmd.loads import (
     modal_force_spectrum,
     reference_height,
 )
-from tmd.spectra import ForceSpectrum, SpectrumFileError, read_force_psd_csv
+from tmd.rules import (
+    MAX_OPTION_NAMES,
+    MAX_RETURN_PERIODS,
+    PLAUSIBLE,
+    Band,
+    InputError,
+    ModeFrequency,
+    Orography,
+    Positive,
+    Ratio,
+    ReturnPeriod,
+    Speed,
+    StructuralDamping,
+    describe_error,
+    shown,
+    unique_list,
+)
+from tmd.spectra import ForceSpectrum, SpectrumFileError, read_force_psd_csv, read_text_file
 from tmd.structure import Mode
 from tmd.wind import SPECTRUM_MODELS, TERRAIN_CATEGORIES, Site
 
 OPTION_NAMES = tuple(OPTIONS)
 
 
-class CaseError(ValueError):
+class CaseError(InputError):
     """A case that cannot be used; the message says where and why (exit code 2)."""
 
 
-Positive = Annotated[float, Field(gt=0, allow_inf_nan=False)]
-Ratio = Annotated[float, Field(gt=0, lt=1, allow_inf_nan=False)]
+def _capped(high: float) -> object:
+    """A finite number > 0 and <= ``high``: caps far beyond any building keep overflow out."""
+    return Annotated[float, Field(gt=0, le=high, strict=True, allow_inf_nan=False)]
 
 
 class _Table(BaseModel):
-    model_config = ConfigDict(extra="forbid", frozen=True)
+    # strict: "0.17" is not a number, true is not 1, 1 is not true, 4.0 is not a count.
+    model_config = ConfigDict(extra="forbid", frozen=True, strict=True)
 
 
 class ModeTable(_Table):
-    frequency_hz: Positive
-    modal_mass_kg: Positive
-    damping_ratio: Ratio
+    frequency_hz: ModeFrequency
+    modal_mass_kg: _capped(1e12)
+    damping_ratio: StructuralDamping
 
 
 class LoadTable(_Table):
@@ -60,16 +79,16 @@ class LoadTable(_Table):
 
 
 class TargetTable(_Table):
-    peak_acceleration_m_s2: Positive
-    duration_s: Positive = 600.0
-    return_period_years: Positive | None = None
+    peak_acceleration_m_s2: _capped(10.0)
+    duration_s: Annotated[float, Field(ge=1, le=86_400, strict=True, allow_inf_nan=False)] = 600.0
+    return_period_years: ReturnPeriod | None = None
 
 
 class DamperTable(_Table):
     objective: Literal[OBJECTIVES] = "acceleration"  # type: ignore[valid-type]
     mass_ratio: Ratio | None = None
     max_mass_ratio: Ratio = 0.05
-    max_stroke_m: Positive | None = None
+    max_stroke_m: _capped(100.0) | None = None
 
     @model_validator(mode="after")
     def _fixed_within_max(self):
@@ -81,28 +100,28 @@ class DamperTable(_Table):
 
 class BuildingTable(_Table):
     height_m: Positive
-    breadth_m: Positive
-    depth_m: Positive
-    drag_coefficient: Positive
-    mode_shape_exponent: Positive = 1.0
+    breadth_m: _capped(500.0)
+    depth_m: _capped(500.0)
+    drag_coefficient: _capped(5.0)
+    mode_shape_exponent: _capped(5.0) = 1.0
     damper_height_m: Positive | None = None
     evaluation_height_m: Positive | None = None
-    mass_per_length_kg_m: Positive | None = None
+    mass_per_length_kg_m: _capped(1e8) | None = None
 
 
 class WindTable(_Table):
     terrain: Literal[tuple(TERRAIN_CATEGORIES)]  # type: ignore[valid-type]
-    basic_speed_m_s: Positive | None = None
+    basic_speed_m_s: Speed | None = None
     reference_height_m: Positive | None = None
-    reference_mean_speed_m_s: Positive | None = None
+    reference_mean_speed_m_s: Speed | None = None
     reference_turbulence_intensity: Ratio | None = None
-    orography_factor: Positive = 1.0
-    probability_shape_parameter: Positive = 0.2
-    probability_exponent: Positive = 0.5
+    orography_factor: Orography = 1.0
+    probability_shape_parameter: _capped(1.0) = 0.2
+    probability_exponent: _capped(2.0) = 0.5
     spectrum: Literal[tuple(SPECTRUM_MODELS)] = "eurocode"  # type: ignore[valid-type]
     coherence: Literal[COHERENCE_MODELS] = "exponential"  # type: ignore[valid-type]
     n_strips: Annotated[int, Field(ge=4, le=400)] = 40
-    return_periods_years: list[Positive] = [1.0, 10.0, 50.0]
+    return_periods_years: unique_list(ReturnPeriod, MAX_RETURN_PERIODS) = [1.0, 10.0, 50.0]
     aerodynamic_damping: bool = False
 
 
@@ -116,15 +135,15 @@ class ProbabilisticTable(_Table):
 
 
 class RobustnessTable(_Table):
-    frequency_band: Annotated[float, Field(ge=0, lt=0.5, allow_inf_nan=False)] = 0.15
+    frequency_band: Band = 0.15
     robust_design: bool = True
     sweep_range: Annotated[float, Field(gt=0, lt=0.6, allow_inf_nan=False)] = 0.20
     probabilistic: ProbabilisticTable | None = None
 
 
 class OptionsTable(_Table):
-    enabled: list[Literal[OPTION_NAMES]] | None = None  # type: ignore[valid-type]
-    frequency_band: Annotated[float, Field(ge=0, lt=0.5, allow_inf_nan=False)] | None = None
+    enabled: unique_list(Literal[OPTION_NAMES], MAX_OPTION_NAMES) | None = None  # type: ignore[valid-type]
+    frequency_band: Band | None = None
 
 
 class CaseTable(_Table):
@@ -198,6 +217,7 @@ class Case:
     target_return_period_years: float | None = None
     wind_settings: dict[str, Any] = field(default_factory=dict)
     tables: CaseTable | None = None
+    notes: tuple[str, ...] = ()  # warnings about unusual inputs, shown with the results
 
     @property
     def shape_factor(self) -> float:
@@ -233,6 +253,7 @@ def load_case(path: str | Path) -> Case:
         duration_s=table.target.duration_s,
         damper=DamperSettings(d.objective, d.mass_ratio, d.max_mass_ratio, d.max_stroke_m),
         description=table.description, inputs=raw, tables=table,
+        notes=_unusual(path, table),
     )
     if table.load is not None:
         csv_path = (path.parent / table.load.force_psd_csv).resolve()
@@ -274,6 +295,7 @@ def _wind_case(path: Path, table: CaseTable, mode: Mode, common: dict) -> Case:
                                                 mode.frequency_hz, period))
                 if w.aerodynamic_damping else 0.0)
         loads.append(WindLoad(period, spectrum, aero, float(site.mean_speed(z_s, period))))
+    _check_damping(path, table, mode, site, building, periods)
     design = next(x for x in loads if x.return_period_years == table.target.return_period_years)
     return Case(spectrum=design.spectrum, input_files=(path.resolve(),), site=site,
                 building=building, wind_loads=tuple(loads),
@@ -281,14 +303,64 @@ def _wind_case(path: Path, table: CaseTable, mode: Mode, common: dict) -> Case:
                 wind_settings=w.model_dump(), **common)
 
 
+def _unusual(path: Path, table: CaseTable) -> tuple[str, ...]:
+    """Warnings for values inside their hard range but outside the usual one."""
+    checks = [("[mode] frequency_hz", table.mode.frequency_hz, "frequency"),
+              ("[mode] damping_ratio", table.mode.damping_ratio, "damping"),
+              ("[target] return_period_years", table.target.return_period_years,
+               "return_period")]
+    if table.wind is not None:
+        w = table.wind
+        checks += [("[wind] basic_speed_m_s", w.basic_speed_m_s, "speed"),
+                   ("[wind] reference_mean_speed_m_s", w.reference_mean_speed_m_s, "speed"),
+                   ("[wind] orography_factor", w.orography_factor, "orography")]
+        checks += [(f"[wind] return_periods_years[{i}]", v, "return_period")
+                   for i, v in enumerate(w.return_periods_years)]
+    notes = (PLAUSIBLE[kind].note(f"{path}: {where}", value) for where, value, kind in checks
+             if value is not None)
+    return tuple(n for n in notes if n)
+
+
+def _check_damping(path: Path, table: CaseTable, mode: Mode, site: Site, building: Building,
+                   periods) -> None:
+    """Refuse a total damping ratio (structural + EN F.18 aerodynamic) outside the plausible range.
+
+    The aerodynamic part is derived from several inputs, so the message names
+    them all; it is checked even when the case does not add it, because the
+    Annex B check of ``tmd wind`` always does (EN 1991-1-4 F.5).
+    """
+    limit = PLAUSIBLE["damping"]
+    aero = [float(aerodynamic_damping_ratio(site, building, mode.modal_mass_kg,
+                                            mode.frequency_hz, period)) for period in periods]
+    worst = max(range(len(aero)), key=aero.__getitem__)
+    total = mode.damping_ratio + aero[worst]
+    if math.isfinite(total) and total <= limit.high:
+        return
+    b = table.building
+    m_e = building.equivalent_mass_per_length(mode.modal_mass_kg)
+    source = (f"[building] mass_per_length_kg_m = {b.mass_per_length_kg_m:g}"
+              if b.mass_per_length_kg_m is not None else
+              f"M* / integral of phi^2 = {m_e:.4g} kg/m, from [mode] modal_mass_kg = "
+              f"{mode.modal_mass_kg:g} and the mode shape normalised at [building] "
+              f"damper_height_m = {building.damper_height_m:g}")
+    speed = float(site.mean_speed(reference_height(site, building), periods[worst]))
+    raise CaseError(
+        f"{path}: derived total damping ratio = {total:.4g}: {limit.describe()}. It is "
+        f"[mode] damping_ratio = {mode.damping_ratio:g} plus the EN 1991-1-4 (F.18) "
+        f"aerodynamic damping {aero[worst]:.4g} of the {periods[worst]:g}-year wind, "
+        f"c_f rho b v_m(z_s) / (4 pi n_1 m_e), from [building] drag_coefficient = "
+        f"{b.drag_coefficient:g}, breadth_m = {b.breadth_m:g}, the mean speed {speed:.3g} m/s "
+        f"at z_s, [mode] frequency_hz = {mode.frequency_hz:g} and m_e = {source}. Check "
+        "mass_per_length_kg_m, damper_height_m and modal_mass_kg (M* is referred to the damper "
+        "level)")
+
+
 def _read_toml(path: Path) -> dict:
     try:
-        with open(path, "rb") as handle:
-            return tomllib.load(handle)
-    except FileNotFoundError:
-        raise CaseError(f"{path}: no such case file") from None
-    except OSError as exc:
-        raise CaseError(f"{path}: cannot read the case file ({exc.strerror})") from None
+        text = read_text_file(path, "case file")
+        return tomllib.loads(text)
+    except SpectrumFileError as exc:
+        raise CaseError(str(exc)) from None
     except tomllib.TOMLDecodeError as exc:
         raise CaseError(f"{path}: not valid TOML: {exc}") from None
 
@@ -299,7 +371,7 @@ def _describe(path: Path, exc: ValidationError) -> str:
 
 
 def _describe_one(path: Path, err: dict) -> str:
-    loc = [str(p) for p in err["loc"]]
+    loc = [str(p) for p in err["loc"] if not str(p).startswith("literal[")]
     if not loc:  # a rule across tables
         return f"{path}: {_allowed(err)}"
     where = _location(loc)
@@ -312,31 +384,21 @@ def _describe_one(path: Path, err: dict) -> str:
         return f"{path}: {where}: unknown key{hint} (known keys here: {allowed})"
     if kind == "missing":
         return f"{path}: {where}: required key is missing"
-    value = err.get("input")
-    shown = repr(value) if not isinstance(value, dict) else "a table"
-    if isinstance(value, float) and not math.isfinite(value):
-        shown = str(value)
-    return f"{path}: {where} = {shown}: {_allowed(err)}"
+    return f"{path}: {where} = {shown(err.get('input'))}: {_allowed(err)}"
 
 
 def _location(loc: list[str]) -> str:
+    index = ""
+    while loc and loc[-1].isdigit():  # an entry of a list: return_periods_years[3]
+        index = f"[{loc[-1]}]" + index
+        loc = loc[:-1]
     if len(loc) == 1:
-        return loc[0]
-    return f"[{'.'.join(loc[:-1])}] {loc[-1]}"
+        return loc[0] + index
+    return f"[{'.'.join(loc[:-1])}] {loc[-1]}{index}"
 
 
 def _allowed(err: dict) -> str:
-    ctx = err.get("ctx") or {}
-    kind = err["type"]
-    if kind == "greater_than":
-        return f"must be > {ctx['gt']}"
-    if kind == "less_than":
-        return f"must be < {ctx['lt']}"
-    if kind == "literal_error":
-        return f"must be one of {ctx.get('expected')}"
-    if kind == "finite_number":
-        return "must be a finite number"
-    return err["msg"].replace("Value error, ", "")
+    return describe_error(err)
 
 
 _TABLES = {

@@ -7,9 +7,12 @@ is allowed). Set TMD_DEBUG=1 to see a traceback instead of a one-line error.
 
 from __future__ import annotations
 
+import contextlib
+import contextvars
 import functools
 import json
 import os
+import warnings
 from pathlib import Path
 from typing import Annotated
 
@@ -21,7 +24,6 @@ from rich.table import Table
 from tmd.case import CaseError, load_case
 from tmd.constants import STANDARD_GRAVITY
 from tmd.dampers.tmd import TunedMassDamper
-from tmd.design import DesignError
 from tmd.jobs import (
     CAUTIONS,
     compare_job,
@@ -31,8 +33,8 @@ from tmd.jobs import (
     sweep_job,
     wind_job,
 )
-from tmd.outputs import OutputError, to_json, write_all
-from tmd.response import NoFiniteResponse
+from tmd.outputs import OutputFolder, to_json
+from tmd.rules import FrequencyRatio, InputError, Ratio, require
 
 app = typer.Typer(add_completion=False, no_args_is_help=True,
                   help="Size passive dampers for a wind-excited building mode.")
@@ -46,28 +48,50 @@ def _error(kind: str, exc: Exception) -> None:
     err_console.print(f"[bold red]{kind}:[/] {escape(str(exc))}", highlight=False, soft_wrap=True)
 
 
+_OPEN: contextvars.ContextVar[contextlib.ExitStack] = contextvars.ContextVar("tmd_cli_open")
+
+
 def _guarded(job):
-    """Turn library failures into exit codes and one clear line each."""
+    """Turn failures into exit codes and one clear line each.
+
+    Exit 2 only for input validation (the case, its CSV, the options, the
+    output folder); every other failure is numerical (exit 1) and says which
+    command on which case failed, with the library's message and values.
+    Output folders opened by the command are released on the way out.
+    """
 
     @functools.wraps(job)
     def run(*args, **kwargs):
+        stack = contextlib.ExitStack()
+        token = _OPEN.set(stack)
         try:
-            return job(*args, **kwargs)
-        except (CaseError, OutputError) as exc:
+            with stack, warnings.catch_warnings():
+                # Floating-point warnings are checked by the library where they matter; the
+                # raw numpy/matplotlib text means nothing to an engineer (see jobs.notes).
+                warnings.simplefilter("ignore", RuntimeWarning)
+                return job(*args, **kwargs)
+        except InputError as exc:
             _error("error", exc)
             raise typer.Exit(2) from None
-        except (DesignError, NoFiniteResponse, ArithmeticError, RuntimeError) as exc:
+        except typer.Exit:
+            raise
+        except Exception as exc:  # noqa: BLE001 - every other failure is exit 1, never a traceback
             if os.environ.get("TMD_DEBUG"):
                 raise
-            _error("numerical failure", exc)
+            where = f"tmd {job.__name__.rstrip('_')} {kwargs.get('case', '')}".rstrip()
+            _error("numerical failure", _numerical(where, exc))
             raise typer.Exit(1) from None
-        except ValueError as exc:
-            if os.environ.get("TMD_DEBUG"):
-                raise
-            _error("error", exc)
-            raise typer.Exit(2) from None
+        finally:
+            _OPEN.reset(token)
 
     return run
+
+
+def _numerical(where: str, exc: Exception) -> str:
+    kind = type(exc).__name__
+    text = str(exc) or "(no message)"
+    return (f"{where}: {kind}: {text}. This is not a problem with the input as validated; "
+            "re-run with TMD_DEBUG=1 for a traceback and report it with the case file")
 
 
 def _accel(value: float) -> str:
@@ -139,7 +163,7 @@ def design(case: CaseArg,
            out: Annotated[Path | None, typer.Option(
                help="Folder for results.json (default: out/<case file stem>).")] = None):
     """Size a TMD for the case and write DIR/results.json."""
-    c = load_case(case)
+    c, target = _case_and_output(case, out)
     result = design_job(c)
     out_console.print(_summary(result))
     if (table := _return_period_table(result)) is not None:
@@ -149,19 +173,30 @@ def design(case: CaseArg,
     out_console.print(f"[{colour}]{escape(sizing['message'])}[/]", highlight=False)
     _print_robustness(result)
     _print_notes(result)
-    _write(c, result, out, case)
+    _write(c, result, target)
 
 
-def _write(c, result, out, case_path):
+def _case_and_output(case_path: Path, out: Path | None):
+    """The validated case and its locked, checked output folder, before any computation.
+
+    The folder is released when the command ends (see :func:`_guarded`).
+    """
+    folder = out if out is not None else Path("out") / case_path.stem
+    target = _OPEN.get().enter_context(OutputFolder(folder, protected=(case_path,)))
+    c = load_case(case_path)
+    target.protect(c.input_files)
+    return c, target
+
+
+def _write(c, result, target: OutputFolder):
     """results.json, the HTML report, figures and tables, all at once."""
     # Imported here: matplotlib is only needed by the commands that write a report.
     from tmd.report import progress_bar, render_report
 
-    folder = out if out is not None else Path("out") / case_path.stem
     with progress_bar("Writing the report", console=err_console) as step:
         files = {"results.json": to_json(result)} | render_report(c, result, on_step=step)
-    written = write_all(folder, files, protected=c.input_files)
-    out_console.print(escape(f"wrote {len(written)} files to {folder} (results.json, "
+    written = target.write(files)
+    out_console.print(escape(f"wrote {len(written)} files to {target.folder} (results.json, "
                              "report.html, figures/, tables/)"), highlight=False, soft_wrap=True)
 
 
@@ -231,14 +266,15 @@ def evaluate(case: CaseArg,
     _print_notes(result)
 
 
-def _damper_from_options(mass_ratio, frequency_ratio, damping_ratio) -> TunedMassDamper:
-    if not mass_ratio > 0:
-        raise CaseError(f"--mass-ratio = {mass_ratio!r}: must be > 0")
-    if not frequency_ratio > 0:
-        raise CaseError(f"--frequency-ratio = {frequency_ratio!r}: must be > 0")
-    if not 0 < damping_ratio < 1:
-        raise CaseError(f"--damping-ratio = {damping_ratio!r}: must lie in (0, 1)")
-    return TunedMassDamper(mass_ratio, frequency_ratio, damping_ratio)
+def _damper_from_options(mass_ratio, frequency_ratio, damping_ratio,
+                         names=("--mass-ratio", "--frequency-ratio", "--damping-ratio")
+                         ) -> TunedMassDamper:
+    """A TMD from options, judged by the case file's rules for the same quantities."""
+    rules_of = (Ratio, FrequencyRatio, Ratio)
+    values = [require(name, value, rule)
+              for name, value, rule in zip(names, (mass_ratio, frequency_ratio, damping_ratio),
+                                           rules_of, strict=True)]
+    return TunedMassDamper(*values)
 
 
 WIND_ROWS = (
@@ -292,7 +328,7 @@ def compare(case: CaseArg,
                 help="Folder for results.json and the report (default: out/<case stem>).")
             ] = None):
     """Size every enabled passive option on the case and compare them."""
-    c = load_case(case)
+    c, target = _case_and_output(case, out)
     result = compare_job(c)
     table = Table(title=f"{result['case']['name']}: passive options "
                         f"(band ±{100 * result['options_frequency_band']:g}%)")
@@ -313,7 +349,7 @@ def compare(case: CaseArg,
     out_console.print(table)
     out_console.print("accelerations in m/s² at the evaluation height", highlight=False)
     _print_notes(result)
-    _write(c, result, out, case)
+    _write(c, result, target)
 
 
 @app.command()
@@ -367,15 +403,21 @@ def _design_from(c, path, ratios, properties) -> TunedMassDamper:
     if path is not None:
         d = _design_block(path)
         try:
-            return _damper_from_options(d["mass_ratio"], d["frequency_ratio"], d["damping_ratio"])
+            values = [d[key] for key in ("mass_ratio", "frequency_ratio", "damping_ratio")]
         except (KeyError, TypeError) as exc:
             raise CaseError(f"{path}: the design block lacks {exc}") from None
+        return _damper_from_options(*values, names=[
+            f"{path}: design.{k}" for k in ("mass_ratio", "frequency_ratio", "damping_ratio")])
     if any(v is not None for v in properties):
         missing = [n for n, v in zip(PROPERTY_OPTIONS, properties, strict=True) if v is None]
         if missing:
             raise CaseError(f"give all of {', '.join(PROPERTY_OPTIONS)} (missing "
                             f"{', '.join(missing)})")
-        return _built_damper(*properties).on(c.mode)
+        built = _built_damper(*properties).on(c.mode)
+        return _damper_from_options(
+            built.mass_ratio, built.frequency_ratio, built.damping_ratio,
+            names=("--damper-mass-kg / M*", "the built frequency ratio",
+                   "the built damping ratio"))
     missing = [n for n, v in zip(RATIO_OPTIONS, ratios, strict=True) if v is None]
     if missing:
         raise CaseError("give --design-from results.json, all of --mass-ratio, "
@@ -396,7 +438,7 @@ def _built_damper(mass_kg, stiffness_n_per_m, damping_n_s_per_m):
 def _design_block(path: Path) -> dict:
     """The design block of a results.json (the recommended design where one is given)."""
     try:
-        data = json.loads(Path(path).read_text(encoding="utf-8"))
+        data = json.loads(Path(path).read_text(encoding="utf-8-sig"))
     except (OSError, ValueError) as exc:
         raise CaseError(f"{path}: not a readable results.json ({exc})") from None
     block = data.get("design") if isinstance(data, dict) else None

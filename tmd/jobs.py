@@ -12,7 +12,7 @@ from collections.abc import Callable
 from dataclasses import asdict
 
 from tmd import __version__
-from tmd.case import Case, RobustnessTable, WindLoad
+from tmd.case import Case, CaseError, RobustnessTable, WindLoad
 from tmd.dampers.tmd import TunedMassDamper
 from tmd.design import LoadCase, Sizing, TmdDesign, bare_response, evaluate_tmd, least_mass, tune
 
@@ -245,7 +245,7 @@ def wind_job(case: Case) -> dict:
     from tmd.wind import velocity_spectrum
 
     if case.site is None:
-        raise ValueError(f"{case.path}: 'tmd wind' needs a case with [wind] and [building]")
+        raise CaseError(f"{case.path}: 'tmd wind' needs a case with [wind] and [building]")
     z_s = float(reference_height(case.site, case.building))
     rows = []
     for wind_load in case.wind_loads:

@@ -18,6 +18,7 @@ engine never needs to know where a spectrum came from.
 from __future__ import annotations
 
 import csv
+import re
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Protocol, runtime_checkable
@@ -189,36 +190,105 @@ class SpectrumFileError(ValueError):
     """A force-spectrum CSV that cannot be used; the message names file and row."""
 
 
-def read_force_psd_csv(path: str | Path) -> TabulatedSpectrum:
-    """Read a modal force PSD table with header ``frequency_hz,psd_n2_per_hz``.
+_NUMBER = re.compile(r"[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?")
+
+
+def read_text_file(path: str | Path, what: str) -> str:
+    """The text of an input file: UTF-8, with or without a byte-order mark.
+
+    Parameters
+    ----------
+    path : str or Path
+        The file [path].
+    what : str
+        What the file is, for messages ("case file", "force spectrum").
+
+    Returns
+    -------
+    str
+        The text without a BOM.
 
     Raises
     ------
     SpectrumFileError
-        With the file, row, value and what is allowed.
+        If the file is missing, unreadable or not UTF-8 (naming the file and
+        the first bad byte's position).
     """
     path = Path(path)
     try:
-        text = path.read_text(encoding="utf-8")
+        data = path.read_bytes()
+    except FileNotFoundError:
+        raise SpectrumFileError(f"{path}: no such {what}") from None
     except OSError as exc:
-        raise SpectrumFileError(f"{path}: cannot read the force spectrum ({exc.strerror})") from exc
-    rows = list(csv.reader(line for line in text.splitlines() if line.strip()))
-    if not rows or tuple(c.strip() for c in rows[0]) != CSV_HEADER:
-        got = ",".join(rows[0]) if rows else "(empty file)"
+        raise SpectrumFileError(f"{path}: cannot read the {what} ({exc.strerror})") from None
+    try:
+        return data.decode("utf-8-sig")
+    except UnicodeDecodeError as exc:
+        line = data[:exc.start].count(b"\n") + 1
+        raise SpectrumFileError(
+            f"{path}: the {what} is not UTF-8 text (byte {data[exc.start]:#04x} at line {line}, "
+            f"byte offset {exc.start}); save it as UTF-8") from None
+
+
+def _number(path: Path, line: int, column: str, text: str) -> float:
+    """A plain decimal number: no underscores, hex, nan or inf, as a spreadsheet writes it."""
+    text = text.strip()
+    if not _NUMBER.fullmatch(text):
+        raise SpectrumFileError(f"{path}: line {line}: {column} = {text!r}: must be a plain "
+                                "decimal number such as 0.17 or 1.5e6")
+    return float(text)
+
+
+def read_force_psd_csv(path: str | Path) -> TabulatedSpectrum:
+    """Read a modal force PSD table with header ``frequency_hz,psd_n2_per_hz``.
+
+    Parameters
+    ----------
+    path : str or Path
+        The CSV file [path]: UTF-8 (a byte-order mark is allowed), any line
+        endings, comma-separated plain decimal numbers.
+
+    Returns
+    -------
+    TabulatedSpectrum
+        The table, with ``source`` set to the path.
+
+    Raises
+    ------
+    SpectrumFileError
+        With the file, line, column, value and what is allowed.
+    """
+    path = Path(path)
+    text = read_text_file(path, "force spectrum")
+    numbered = [(n, line) for n, line in enumerate(text.splitlines(), start=1) if line.strip()]
+    rows = [(n, row) for n, row in zip((n for n, _ in numbered),
+                                       csv.reader(line for _, line in numbered), strict=True)]
+    if not rows or tuple(c.strip() for c in rows[0][1]) != CSV_HEADER:
+        got = ",".join(rows[0][1]) if rows else "(empty file)"
         raise SpectrumFileError(f"{path}: header is {got!r}; expected {','.join(CSV_HEADER)!r}")
-    values = []
-    for number, row in enumerate(rows[1:], start=2):
+    values, lines = [], []
+    for number, row in rows[1:]:
         if len(row) != 2:
-            raise SpectrumFileError(f"{path}: line {number} has {len(row)} columns; expected 2")
-        try:
-            values.append((float(row[0]), float(row[1])))
-        except ValueError as exc:
-            raise SpectrumFileError(f"{path}: line {number}: {exc}") from exc
+            raise SpectrumFileError(f"{path}: line {number} has {len(row)} columns; expected 2 "
+                                    f"({','.join(CSV_HEADER)})")
+        values.append(tuple(_number(path, number, c, v)
+                            for c, v in zip(CSV_HEADER, row, strict=True)))
+        lines.append(number)
     table = np.array(values, dtype=float).reshape(-1, 2)
     problem = table_problem(table[:, 0], table[:, 1], first_row=2, row_word="line")
     if problem:
-        raise SpectrumFileError(f"{path}: {problem}")
+        raise SpectrumFileError(f"{path}: {_true_line(problem, lines)}")
     return TabulatedSpectrum(table[:, 0], table[:, 1], source=str(path))
+
+
+def _true_line(problem: str, lines: list[int]) -> str:
+    """Re-number "line N" (data rows counted from 2) to the file's own line numbers."""
+    match = re.match(r"line (\d+)", problem)
+    if not match:
+        return problem
+    row = int(match.group(1)) - 2
+    return problem.replace(match.group(0), f"line {lines[row]}", 1) if 0 <= row < len(lines) \
+        else problem
 
 
 def write_force_psd_csv(path: str | Path, frequency_hz, psd_n2_per_hz) -> None:

@@ -1,0 +1,114 @@
+"""The CLI's exit codes: 2 for input validation only, 1 for numerical failures, never a traceback.
+
+The rule under test is the project's documented exit-code contract (README
+"Exit codes"; BRIEF "Exit codes"): 0 the job ran, 1 numerical failure saying
+what failed, 2 bad input naming file, field, value and what is allowed.
+"""
+
+import numpy as np
+import pytest
+from typer.testing import CliRunner
+
+from tmd import cli
+from tmd.cli import app
+from tmd.design import DesignError
+from tmd.outputs import MANIFEST
+
+from .test_cli import CASES, DEMO
+
+runner = CliRunner()
+
+
+def _never(*args, **kwargs):
+    raise AssertionError("the job ran although the output location is unusable")
+
+
+def test_out_at_an_existing_file_exits_two_before_computing(tmp_path, monkeypatch):
+    monkeypatch.setattr(cli, "design_job", _never)
+    target = tmp_path / "results.json"
+    target.write_text("keep me")
+    result = runner.invoke(app, ["design", str(DEMO), "--out", str(target)])
+    assert result.exit_code == 2, result.output
+    assert "is an existing file, not a folder" in result.output
+    assert "Traceback" not in result.output and target.read_text() == "keep me"
+
+
+def test_out_holding_the_users_files_exits_two_before_computing(tmp_path, monkeypatch):
+    monkeypatch.setattr(cli, "compare_job", _never)
+    (tmp_path / "report.html").write_text("the user's own")
+    result = runner.invoke(app, ["compare", str(DEMO), "--out", str(tmp_path)])
+    assert result.exit_code == 2, result.output
+    assert "did not write (report.html)" in result.output
+
+
+def test_out_at_the_case_folder_is_refused(monkeypatch):
+    monkeypatch.setattr(cli, "design_job", _never)
+    result = runner.invoke(app, ["design", str(DEMO), "--out", str(CASES)])
+    assert result.exit_code == 2, result.output
+    assert "did not write" in result.output or "an input of this run" in result.output
+
+
+@pytest.mark.parametrize("exc", [
+    ValueError("f(a) and f(b) must have different signs"),
+    np.linalg.LinAlgError("Singular matrix"),
+    DesignError("SLSQP failed at mass ratio 0.01"),
+    FloatingPointError("overflow"),
+])
+def test_numerical_failures_exit_one_saying_what_failed(tmp_path, monkeypatch, exc):
+    def fail(case):
+        raise exc
+
+    monkeypatch.setattr(cli, "design_job", fail)
+    result = runner.invoke(app, ["design", str(DEMO), "--out", str(tmp_path / "o")])
+    assert result.exit_code == 1, result.output
+    assert "numerical failure" in result.output and str(exc) in result.output
+    assert type(exc).__name__ in result.output and "harbourline_residences.toml" in result.output
+    assert "Traceback" not in result.output
+    assert not (tmp_path / "o").exists()  # nothing written
+
+
+@pytest.mark.parametrize("option, value, needle", [
+    ("--mass-ratio", "20000", "--mass-ratio = 20000.0: must be < 1"),
+    ("--mass-ratio", "inf", "--mass-ratio = inf: must be a finite number"),
+    ("--mass-ratio", "-0.01", "--mass-ratio = -0.01: must be > 0"),
+    ("--damping-ratio", "nan", "--damping-ratio = nan: must be a finite number"),
+    ("--frequency-ratio", "0", "--frequency-ratio = 0.0: must be > 0"),
+])
+def test_cli_options_follow_the_case_file_rules(option, value, needle):
+    args = {"--mass-ratio": "0.02", "--frequency-ratio": "0.98", "--damping-ratio": "0.08"}
+    args[option] = value
+    result = runner.invoke(app, ["evaluate", str(DEMO), *[x for kv in args.items() for x in kv]])
+    assert result.exit_code == 2, result.output
+    assert needle in result.output.replace("\n", " ")
+    assert "Traceback" not in result.output
+
+
+def test_design_from_a_file_is_judged_by_the_same_rules(tmp_path):
+    path = tmp_path / "results.json"
+    path.write_text('{"design": {"mass_ratio": "0.02", "frequency_ratio": 0.98, '
+                    '"damping_ratio": 0.08}}')
+    result = runner.invoke(app, ["sweep", str(DEMO), "--design-from", str(path)])
+    assert result.exit_code == 2, result.output
+    assert "design.mass_ratio = '0.02': must be a number" in result.output.replace("\n", " ")
+
+
+def test_wind_on_a_spectrum_case_is_bad_input():
+    result = runner.invoke(app, ["wind", str(DEMO)])
+    assert result.exit_code == 2, result.output
+    assert "needs a case with [wind] and [building]" in result.output
+
+
+def test_a_written_folder_can_be_written_again(tmp_path, monkeypatch):
+    """The tool's own earlier output is replaced (its manifest lists every file)."""
+    out = tmp_path / "o"
+    out.mkdir()
+    (out / "results.json").write_text("{}")
+    (out / MANIFEST).write_text('{"written_by": "tmd", "files": ["results.json"]}')
+
+    def job(case):
+        raise ValueError("stop after the checks")
+
+    monkeypatch.setattr(cli, "design_job", job)
+    result = runner.invoke(app, ["design", str(DEMO), "--out", str(out)])
+    assert result.exit_code == 1 and "stop after the checks" in result.output
+    assert (out / "results.json").read_text() == "{}"  # untouched by a failed run
