@@ -46,7 +46,7 @@ def test_a_second_write_replaces_the_whole_folder(tmp_path):
     # Stale files of the earlier run are gone; only the new set remains.
     assert _content(out) == _files("two", 4)
     assert json.loads((out / MANIFEST).read_text())["files"] == sorted(_files("two", 4))
-    assert _siblings(out) == {".out.tmd-lock"}
+    assert _siblings(out) == set()
 
 
 def test_an_existing_file_is_refused_before_any_work(tmp_path):
@@ -137,7 +137,7 @@ def test_a_failed_write_leaves_the_old_folder(tmp_path, monkeypatch):
     with pytest.raises(OutputError, match="the disk is full.*left as it was"):
         write_all(out, _files("new"))
     assert _content(out) == _files("old")
-    assert _siblings(out) == {".out.tmd-lock"}
+    assert _siblings(out) == set()
 
 
 _WRITER = textwrap.dedent("""
@@ -197,6 +197,6 @@ def test_a_writer_killed_at_random_points_leaves_one_complete_folder(tmp_path):
         content = _content(run / "out")
         # Never a mixture: exactly the old set or exactly the new one, nothing left beside it.
         assert content in (_files("old"), _files("new")), (kill_at, sorted(content))
-        assert _siblings(run / "out") == {".out.tmd-lock"}, (kill_at, _siblings(run / "out"))
+        assert _siblings(run / "out") == set(), (kill_at, _siblings(run / "out"))
         outcomes.add("new" if content == _files("new") else "old")
     assert outcomes == {"old", "new"}  # the kill points straddle the swap

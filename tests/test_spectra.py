@@ -36,7 +36,8 @@ def test_table_variance_matches_quadrature():
     ("frequency_hz,psd_n2_per_hz\n0.1,1\n0.1,2\n", "strictly increasing"),
     ("frequency_hz,psd_n2_per_hz\n0.1,1\n0.2,0\n", "psd_n2_per_hz = 0.0; must be finite and > 0"),
     ("frequency_hz,psd_n2_per_hz\n0.1,1\n0.2,-3\n", "must be finite and > 0"),
-    ("frequency_hz,psd_n2_per_hz\n0.1,1\n0.2,nan\n", "must be finite and > 0"),
+    ("frequency_hz,psd_n2_per_hz\n0.1,1\n0.2,nan\n",
+     "psd_n2_per_hz = 'nan': must be a plain decimal"),
     ("frequency_hz,psd_n2_per_hz\n0.1,1\n0.2,abc\n", "line 3"),
     ("frequency_hz,psd_n2_per_hz\n0.1,1\n", "at least two rows"),
 ])

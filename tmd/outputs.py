@@ -115,6 +115,7 @@ class OutputFolder:
         self.folder = Path(folder)
         self.protected = tuple(Path(p) for p in protected)
         self._lock_fd: int | None = None
+        self._lock_path: Path | None = None
 
     # -- entering: lock, recover, check -------------------------------------------------
     def __enter__(self) -> OutputFolder:
@@ -136,6 +137,7 @@ class OutputFolder:
         except OSError as exc:
             raise OutputError(f"--out {folder}: cannot create the folder {folder.parent} "
                               f"({_why(exc)})") from None
+        self._check(probe=False)  # refuse before leaving anything beside the folder
         self._lock()
         try:
             recover(folder)
@@ -157,26 +159,37 @@ class OutputFolder:
 
     def _lock(self) -> None:
         path = _sibling(self.folder, "lock")
-        try:
-            fd = os.open(path, os.O_RDWR | os.O_CREAT, 0o644)
-        except OSError as exc:
-            raise OutputError(f"--out {self.folder}: cannot write in {self.folder.parent} "
-                              f"({_why(exc)})") from None
-        try:
-            fcntl.flock(fd, fcntl.LOCK_EX | fcntl.LOCK_NB)
-        except OSError:
+        while True:
+            try:
+                fd = os.open(path, os.O_RDWR | os.O_CREAT, 0o644)
+            except OSError as exc:
+                raise OutputError(f"--out {self.folder}: cannot write in {self.folder.parent} "
+                                  f"({_why(exc)})") from None
+            try:
+                fcntl.flock(fd, fcntl.LOCK_EX | fcntl.LOCK_NB)
+            except OSError:
+                os.close(fd)
+                raise OutputError(f"--out {self.folder}: another tmd run is writing to this "
+                                  "folder; wait for it to finish or choose another --out") from None
+            # The holder before us removes the file when it is done: the lock counts only
+            # if the name still refers to the file we locked.
+            try:
+                same = os.fstat(fd).st_ino == os.stat(path).st_ino
+            except FileNotFoundError:
+                same = False
+            if same:
+                self._lock_fd, self._lock_path = fd, path
+                return
             os.close(fd)
-            raise OutputError(f"--out {self.folder}: another tmd run is writing to this folder; "
-                              "wait for it to finish or choose another --out") from None
-        self._lock_fd = fd
 
     def _unlock(self) -> None:
         if self._lock_fd is not None:
+            Path(self._lock_path).unlink(missing_ok=True)  # still held: nobody else has it
             fcntl.flock(self._lock_fd, fcntl.LOCK_UN)
             os.close(self._lock_fd)
             self._lock_fd = None
 
-    def _check(self) -> None:
+    def _check(self, probe: bool = True) -> None:
         folder = self.folder
         if folder.exists() and not folder.is_dir():
             raise OutputError(f"--out {folder}: is an existing file, not a folder; give a folder "
@@ -196,10 +209,12 @@ class OutputFolder:
                 raise OutputError(
                     f"--out {folder}: holds files that tmd did not write ({shown}); tmd replaces "
                     "the whole folder, so choose a new or empty folder, or move those files")
-        probe = _sibling(folder, f"probe-{uuid.uuid4().hex[:8]}")
+        if not probe:
+            return
+        trial = _sibling(folder, f"probe-{uuid.uuid4().hex[:8]}")
         try:
-            probe.write_bytes(b"")
-            probe.unlink()
+            trial.write_bytes(b"")
+            trial.unlink()
         except OSError as exc:
             raise OutputError(f"--out {folder}: cannot write in {folder.parent} "
                               f"({_why(exc)})") from None

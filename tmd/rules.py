@@ -161,7 +161,8 @@ def _unique(values):
     seen = set()
     for v in values:
         if v in seen:
-            raise ValueError(f"{v!r} is given twice; each entry may appear once")
+            text = f"{v:g}" if isinstance(v, float) else repr(v)
+            raise ValueError(f"{text} is given twice; each entry may appear once")
         seen.add(v)
     return values
 
