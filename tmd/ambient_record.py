@@ -13,12 +13,14 @@ from pathlib import Path
 
 import numpy as np
 
+from tmd.errors import InputError
+
 HEADER = ("time_s", "acceleration_m_s2")
 MIN_SAMPLES = 1024  # fewer cannot hold a Welch estimate of several segments (our rule)
 TIME_STEP_TOLERANCE = 1e-3  # allowed jitter of the time step, relative to its median
 
 
-class RecordError(ValueError):
+class RecordError(InputError):
     """A record that cannot be used (exit code 2); the message says where and why."""
 
 

@@ -30,6 +30,7 @@ from dataclasses import dataclass, replace
 
 from tmd.dampers.tmd import TunedMassDamper
 from tmd.design import LoadCase, TmdDesign, evaluate_tmd, tune
+from tmd.errors import InputError
 from tmd.structure import Mode
 
 TWO_PI = 2.0 * math.pi
@@ -57,9 +58,9 @@ class BuiltDamper:
         for name in ("mass_kg", "stiffness_n_per_m", "damping_n_s_per_m"):
             value = getattr(self, name)
             if not (isinstance(value, int | float) and math.isfinite(value) and value > 0):
-                raise ValueError(f"{name} = {value!r}: must be a finite number > 0")
+                raise InputError(f"{name} = {value!r}: must be a finite number > 0")
         if not self.damping_ratio < 1:
-            raise ValueError(f"damping_n_s_per_m = {self.damping_n_s_per_m!r} makes the damper's "
+            raise InputError(f"damping_n_s_per_m = {self.damping_n_s_per_m!r} makes the damper's "
                              f"damping ratio {self.damping_ratio:.3g}; it must be < 1")
 
     @property
@@ -176,7 +177,7 @@ def measured_structure(nominal: Mode, structural_damping_ratio: float,
                                ("--measured-modal-mass-kg", modal_mass_kg, math.inf)):
         if value is not None and not (math.isfinite(value) and 0 < value < upper):
             allowed = "in (0, 1)" if upper == 1.0 else "a finite number > 0"
-            raise ValueError(f"{name} = {value!r}: must be {allowed}")
+            raise InputError(f"{name} = {value!r}: must be {allowed}")
     aero = aerodynamic_damping_ratio * nominal.frequency_hz / frequency_hz
     return MeasuredStructure(
         frequency_hz=float(frequency_hz),
@@ -307,7 +308,7 @@ def retune_damper(load: LoadCase, structure: MeasuredStructure, installed: Built
     c = 2 zeta_d m_d (2 pi f_d).
     """
     if not 0 <= adjustment_band < 1:
-        raise ValueError(f"adjustment_band = {adjustment_band!r}: must lie in [0, 1)")
+        raise InputError(f"adjustment_band = {adjustment_band!r}: must lie in [0, 1)")
     measured = replace(load, mode=structure.mode)
     mode = structure.mode
     mu = installed.mass_kg / mode.modal_mass_kg
