@@ -161,3 +161,64 @@ def test_first_moment_of_two_dof_stroke_matches_quadrature():
                    for lo, hi in zip([0.0, *points], [*points, 50.0], strict=True))
     expected += quad(integrand, 50.0, np.inf, epsabs=0, epsrel=1e-11, limit=400)[0]
     assert r.stroke.m1[..., 0] == pytest.approx(expected, rel=1e-7)
+
+
+def _with_narrow_peak(f, s, centre_hz, half_width_hz, factor=1e3):
+    """The table plus a peak of ``factor`` times the table at centre, feet at +/- half-width."""
+    base = TabulatedSpectrum(f, s)
+    extra = np.array([centre_hz - half_width_hz, centre_hz, centre_hz + half_width_hz])
+    values = base(extra) * np.array([1.0, factor, 1.0])
+    keep = (f < extra[0]) | (f > extra[-1])
+    order = np.argsort(np.concatenate([f[keep], extra]))
+    return TabulatedSpectrum(np.concatenate([f[keep], extra])[order],
+                             np.concatenate([s[keep], values])[order])
+
+
+def _quad_acceleration_m0(spec, absorbers, zeta_s, resonances_hz):
+    # Reference: scipy.integrate.quad with every table row and the resonances
+    # as breakpoints (DEVELOPERS.md "Tests"), epsrel 1e-10.
+    def integrand(x):
+        h = transfer_functions(np.array([x]), FS, MASS, zeta_s, absorbers)["acceleration"]
+        return float(np.abs(h[0]) ** 2 * spec(np.array([x]))[0])
+
+    f = spec.frequency_hz
+    points = sorted(set(f.tolist()) | set(resonances_hz))
+    return quad(integrand, f[0], f[-1], points=points[1:-1], limit=5000, epsrel=1e-10)[0]
+
+
+@pytest.mark.parametrize("centre_hz", [0.2005, 0.19, 0.05, 1.0])  # at, near and away from f_s
+@pytest.mark.parametrize("half_width_hz", [1e-4, 1e-3])
+@pytest.mark.parametrize("with_tmd", [False, True])
+def test_narrow_load_peaks_match_adaptive_quadrature(centre_hz, half_width_hz, with_tmd):
+    # Issue 13, defect 8: a x1000 peak 1e-4 Hz wide fell between the grid's
+    # nodes (-56% at resonance). The table's sharp rows are now panel edges.
+    # Tolerance 1e-6 as for any tabulated spectrum (kinks at every row, see
+    # test_tabulated_spectrum_matches_adaptive_quadrature).
+    f = np.geomspace(0.01, 5.0, 161)
+    spec = _with_narrow_peak(f, 1e9 / (1 + (f / 0.05) ** 2) ** (5 / 6), centre_hz, half_width_hz)
+    zs = 0.01
+    ab = single_tmd(FS, MASS, 0.02, 0.98, 0.06) if with_tmd else Absorbers.none()
+    r = spectral_response(FS, MASS, zs, ab, spec)
+    ref = _quad_acceleration_m0(spec, ab, zs, [0.18, 0.2, 0.22])
+    assert r.acceleration.m0 == pytest.approx(ref, rel=1e-6)
+
+
+def test_issue_example_narrow_peak_in_the_demo_table():
+    # Issue 13, defect 8: Harbourline's table with a x1000 peak of half-width
+    # 1e-4 Hz at 0.1705 Hz, bare mode 0.17 Hz, 1.9e7 kg, 1.2% damping; the
+    # engine gave an rms acceleration 56% low. Reference: quad with breakpoints.
+    from tmd.spectra import read_force_psd_csv
+
+    table = read_force_psd_csv("cases/harbourline_force.csv")
+    spec = _with_narrow_peak(table.frequency_hz, table.psd_n2_per_hz, 0.1705, 1e-4)
+    fs, mass, zs = 0.17, 1.9e7, 0.012
+    r = spectral_response(fs, mass, zs, Absorbers.none(), spec)
+
+    def integrand(x):
+        h = transfer_functions(np.array([x]), fs, mass, zs, Absorbers.none())["acceleration"]
+        return float(np.abs(h[0]) ** 2 * spec(np.array([x]))[0])
+
+    points = sorted(set(spec.frequency_hz.tolist()) | {fs})
+    ref = quad(integrand, points[0], points[-1], points=points[1:-1], limit=5000,
+               epsrel=1e-10)[0]
+    assert r.acceleration.m0 == pytest.approx(ref, rel=1e-6)

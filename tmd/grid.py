@@ -12,6 +12,13 @@ machine precision while the panel still reaches far from the pole. Below the
 lowest and above the highest pole, log-spaced Gauss-Legendre panels (and a
 reciprocal map f = f_0 / t for an unbounded upper end) cover the tails.
 
+A load spectrum may have sharp features of its own: a tabulated spectrum
+is a power law between its rows, and a narrow peak in the table (a vortex
+shedding or wind-tunnel artefact a few 1e-4 Hz wide) falls between the
+nodes of panels sized for the poles. :func:`sharp_breakpoints` picks the
+table rows where the log-log slope changes sharply; :func:`pole_grid` then
+splits its panels there, so that every panel sees a smooth load.
+
 Every design in a batch gets the same number of nodes, so that the engine
 evaluates all of them in one vectorised call.
 """
@@ -29,6 +36,13 @@ TAIL_PANELS = 3
 # The log tails reach this factor beyond the outermost pole panels; beyond it
 # a linear (below) or reciprocal (above) panel closes the range.
 TAIL_REACH = 1e3
+# A change of the log-log slope larger than this at a table row makes it a
+# panel edge (a smooth spectrum tabulated at 100 rows per decade changes its
+# slope by about 0.01 per row; a narrow peak by hundreds).
+SHARP_SLOPE_CHANGE = 1.0
+# At most this many sharp rows become edges (the sharpest first), which
+# bounds the cost of a noisy table at MAX_SHARP_BREAKPOINTS panels.
+MAX_SHARP_BREAKPOINTS = 64
 
 
 @lru_cache(maxsize=16)
@@ -69,7 +83,46 @@ def _pole_panel(centre, half_width, lo, hi, n):
     return f, w
 
 
-def pole_grid(centre_hz, half_width_hz, f_min_hz=0.0, f_max_hz=np.inf, *,
+def sharp_breakpoints(frequency_hz, psd):
+    """Table rows where a log-log interpolated spectrum bends sharply [Hz].
+
+    Parameters
+    ----------
+    frequency_hz : array, shape (N,)
+        The spectrum's breakpoints (e.g. a table's frequencies), strictly
+        increasing [Hz].
+    psd : array, shape (N,)
+        The spectrum there [N^2/Hz]; zero or negative values are skipped.
+
+    Returns
+    -------
+    array
+        The breakpoints where the log-log slope changes by more than
+        :data:`SHARP_SLOPE_CHANGE`, sorted; at most
+        :data:`MAX_SHARP_BREAKPOINTS` of them (the sharpest).
+
+    Notes
+    -----
+    On [f_i, f_{i+1}] the interpolant is a power law of slope
+    p_i = ln(S_{i+1} / S_i) / ln(f_{i+1} / f_i). Row i is sharp when
+    |p_i - p_{i-1}| > SHARP_SLOPE_CHANGE. The first and last rows are the
+    support's ends, which are panel edges already.
+    """
+    f = np.asarray(frequency_hz, float)
+    s = np.asarray(psd, float)
+    keep = (f > 0) & (s > 0) & np.isfinite(f) & np.isfinite(s)
+    f, s = f[keep], s[keep]
+    if f.size < 3:
+        return np.empty(0)
+    slope = np.diff(np.log(s)) / np.diff(np.log(f))
+    change = np.abs(np.diff(slope))
+    sharp = np.flatnonzero(change > SHARP_SLOPE_CHANGE)
+    if sharp.size > MAX_SHARP_BREAKPOINTS:
+        sharp = sharp[np.argsort(change[sharp])[-MAX_SHARP_BREAKPOINTS:]]
+    return np.sort(f[sharp + 1])
+
+
+def pole_grid(centre_hz, half_width_hz, f_min_hz=0.0, f_max_hz=np.inf, *, breakpoints_hz=(),
               nodes_per_pole=NODES_PER_POLE, nodes_per_tail_panel=NODES_PER_TAIL_PANEL):
     """Quadrature nodes and weights on [f_min, f_max] clustered at the poles.
 
@@ -82,6 +135,11 @@ def pole_grid(centre_hz, half_width_hz, f_min_hz=0.0, f_max_hz=np.inf, *,
         Half-power half-widths |Re(lambda)| / (2 pi) [Hz], > 0.
     f_min_hz, f_max_hz : float
         Integration range [Hz]; 0 and inf are allowed.
+    breakpoints_hz : sequence of float
+        Frequencies where the load is not smooth (see
+        :func:`sharp_breakpoints`) [Hz]; every panel is split there.
+    nodes_per_pole, nodes_per_tail_panel : int
+        Gauss-Legendre nodes per pole panel and per tail panel.
 
     Returns
     -------
@@ -95,6 +153,12 @@ def pole_grid(centre_hz, half_width_hz, f_min_hz=0.0, f_max_hz=np.inf, *,
     each boundary placed where the two Lorentzians are equal,
     f = (f_k h_{k+1} + f_{k+1} h_k) / (h_k + h_{k+1}). The lowest panel starts
     at f_1 / 2 and the highest ends at 2 f_P; the tails take over there.
+
+    With breakpoints, every panel that holds one is cut there; each piece
+    keeps its panel's map (the sinh map of its pole, or the log or
+    reciprocal map of its tail) and gets ``nodes_per_pole`` nodes, so that
+    a feature narrower than the node spacing is integrated on panels of
+    its own.
     """
     order = np.argsort(centre_hz, axis=-1)
     c = np.take_along_axis(np.asarray(centre_hz, float), order, axis=-1)
@@ -103,6 +167,10 @@ def pole_grid(centre_hz, half_width_hz, f_min_hz=0.0, f_max_hz=np.inf, *,
     edges = np.concatenate([0.5 * c[..., :1], inner, 2.0 * c[..., -1:]], axis=-1)
     edges = np.clip(edges, f_min_hz, f_max_hz)
 
+    cuts = np.asarray(breakpoints_hz, float).ravel()
+    cuts = np.unique(cuts[(cuts > f_min_hz) & (cuts < f_max_hz)])
+    if cuts.size:
+        return _split_grid(c, h, edges, f_min_hz, f_max_hz, cuts, nodes_per_pole)
     parts = []
     for k in range(c.shape[-1]):
         parts.append(_pole_panel(c[..., k], h[..., k], edges[..., k], edges[..., k + 1],
@@ -133,3 +201,61 @@ def _upper_tail(edge, f_max, n):
     else:
         parts.append(_log_panel(far, np.full_like(far, f_max), n))
     return parts
+
+
+def _tail_edges(edge, f_min, f_max):
+    """Edges of the lower and upper tail panels, in increasing order."""
+    steps = np.arange(TAIL_PANELS + 1) / TAIL_PANELS
+    far_lo = np.maximum(edge[..., :1] / TAIL_REACH, f_min)
+    far_hi = np.minimum(edge[..., -1:] * TAIL_REACH, f_max)
+    lower = far_lo * (edge[..., :1] / far_lo) ** steps
+    upper = edge[..., -1:] * (far_hi / edge[..., -1:]) ** steps
+    return lower, upper
+
+
+def _split_grid(c, h, edges, f_min, f_max, cuts, n):
+    """The panels of :func:`pole_grid`, cut at ``cuts``, n nodes on every piece.
+
+    Panels in increasing order: one linear [f_min, far], the lower log
+    panels, the pole panels, the upper log panels, then [far, f_max] (log,
+    or reciprocal when f_max is infinite). A piece keeps its panel's map.
+    """
+    lower, upper = _tail_edges(edges, f_min, f_max)
+    batch = edges.shape[:-1]
+    start = np.full(batch + (1,), float(f_min))
+    end = np.full(batch + (1,), float(f_max))
+    panel_edges = np.concatenate([start, lower, edges[..., 1:], upper[..., 1:], end], axis=-1)
+    pole_slots = np.arange(1 + TAIL_PANELS, 1 + TAIL_PANELS + c.shape[-1])
+    kinds = np.full(panel_edges.shape[-1] - 1, _LOG)
+    kinds[0] = _LINEAR
+    kinds[pole_slots] = _POLE
+    # Every design is cut at the same frequencies, so all get the same count.
+    all_edges = np.sort(np.concatenate(
+        [panel_edges, np.broadcast_to(cuts, batch + cuts.shape)], axis=-1), axis=-1)
+    lo, hi = all_edges[..., :-1], all_edges[..., 1:]
+    mid = np.where(np.isinf(hi), lo + 1.0, 0.5 * (lo + hi))
+    parent = np.sum(panel_edges[..., None, 1:] <= mid[..., None], axis=-1)
+    parent = np.minimum(parent, kinds.size - 1)
+    kind = kinds[parent]
+    pole = np.clip(parent - pole_slots[0], 0, c.shape[-1] - 1)
+    centre = np.take_along_axis(c, pole, axis=-1)
+    width = np.take_along_axis(h, pole, axis=-1)
+    kind = np.where(np.isinf(hi), _RECIPROCAL, kind)
+
+    # Evaluate every map on safe stand-ins and keep the piece's own.
+    safe_lo = np.where(lo > 0, lo, 1.0)
+    safe_hi = np.where(np.isfinite(hi), hi, safe_lo)
+    f_lin, w_lin = _linear_panel(lo, safe_hi, n)
+    f_log, w_log = _log_panel(safe_lo, np.maximum(safe_hi, safe_lo), n)
+    f_rec, w_rec = _reciprocal_panel(safe_lo, n)
+    f_pole, w_pole = _pole_panel(centre, width, lo, safe_hi, n)
+    choice = kind[..., None]
+    frequency = np.select([choice == _LINEAR, choice == _LOG, choice == _RECIPROCAL],
+                          [f_lin, f_log, f_rec], f_pole)
+    weight = np.select([choice == _LINEAR, choice == _LOG, choice == _RECIPROCAL],
+                       [w_lin, w_log, w_rec], w_pole)
+    shape = batch + (-1,)
+    return frequency.reshape(shape), weight.reshape(shape)
+
+
+_LINEAR, _LOG, _POLE, _RECIPROCAL = range(4)

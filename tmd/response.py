@@ -26,7 +26,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from tmd.dampers.absorber import Absorbers
-from tmd.grid import NODES_PER_POLE, pole_grid
+from tmd.grid import NODES_PER_POLE, pole_grid, sharp_breakpoints
 from tmd.spectra import ForceSpectrum
 
 TWO_PI = 2.0 * np.pi
@@ -230,6 +230,7 @@ def spectral_response(frequency_hz, modal_mass_kg, damping_ratio, absorbers: Abs
     poles = closed_loop_poles(frequency_hz, modal_mass_kg, damping_ratio, absorbers)
     centre, width = resonances(poles)
     grid, weight = pole_grid(centre, width, spectrum.f_min_hz, spectrum.f_max_hz,
+                             breakpoints_hz=load_breakpoints(spectrum),
                              nodes_per_pole=nodes_per_pole)
     batch = grid.shape[:-1]
     h = transfer_functions(grid, *(np.broadcast_to(v, batch) for v in
@@ -254,6 +255,25 @@ def spectral_response(frequency_hz, modal_mass_kg, damping_ratio, absorbers: Abs
         acceleration_top_decade=_top_decade(grid, load, h["acceleration"], acc,
                                             spectrum.f_max_hz),
     )
+
+
+def load_breakpoints(spectrum: ForceSpectrum) -> np.ndarray:
+    """The spectrum's breakpoints where it bends sharply: panel edges of the grid [Hz].
+
+    Parameters
+    ----------
+    spectrum : ForceSpectrum
+        One-sided modal force PSD [N^2/Hz] with its ``breakpoints_hz``.
+
+    Returns
+    -------
+    array
+        See :func:`tmd.grid.sharp_breakpoints`; empty for a smooth spectrum.
+    """
+    points = np.asarray(getattr(spectrum, "breakpoints_hz", ()), float)
+    if points.size < 3:
+        return np.empty(0)
+    return sharp_breakpoints(points, spectrum(points))
 
 
 def _broadcast_absorbers(absorbers: Absorbers, batch) -> Absorbers:
