@@ -547,3 +547,112 @@ def identify(record: Annotated[Path, typer.Argument(
     for message in result["warnings"]:
         err_console.print(f"[yellow]warning:[/] {escape(message)}", highlight=False)
     out_console.print("[dim]Cautions: " + escape(" ".join(CAUTIONS)) + "[/]", highlight=False)
+
+
+SIMULATION_OPTIONS = {"records": "--records", "duration_s": "--duration-s",
+                      "time_step_s": "--time-step-s", "substeps": "--substeps"}
+
+
+@app.command()
+@_guarded
+def simulate(case: CaseArg,
+             design_from: Annotated[Path, typer.Option(
+                 help="results.json of `tmd design` (its TMD) or of `tmd compare` (with "
+                      "--option liquid-column).")],
+             option: Annotated[str, typer.Option(
+                 help="Which device of the results.json: tmd or liquid-column.")] = "tmd",
+             records: Annotated[int, typer.Option(help="Number of records (>= 10).")] = 200,
+             duration_s: Annotated[float | None, typer.Option(
+                 help="Record length T [s] (default: the target's duration).")] = None,
+             time_step_s: Annotated[float | None, typer.Option(
+                 help="Sample step [s] (default: 0.05 s or finer where the structure or the "
+                      "load needs it).")] = None,
+             seed: Annotated[int, typer.Option(help="Seed of the random phases.")] = 1,
+             end_stop_travel_m: Annotated[float | None, typer.Option(
+                 help="End-stops at +- this stroke [m] (default: none).")] = None,
+             out: Annotated[Path | None, typer.Option(
+                 help="Folder for results.json, time_history.csv and figures "
+                      "(default: out/<case file stem>-simulation).")] = None,
+             json_output: Annotated[bool, typer.Option("--json", help="Print JSON only.")] = False):
+    """Check a design by simulated records: maxima against Davenport and Vanmarcke peaks."""
+    from tmd.jobs import simulation_job
+    from tmd.simulation import SimulationInputError, SimulationSettings
+
+    c = load_case(case)
+    device = _simulated_device_from(c, design_from, option)
+    if end_stop_travel_m is not None and not (0 < end_stop_travel_m < float("inf")):
+        raise CaseError(f"--end-stop-travel-m = {end_stop_travel_m!r}: must be finite and > 0")
+    settings = SimulationSettings(records=records, duration_s=duration_s or c.duration_s,
+                                  time_step_s=time_step_s, seed=seed)
+    try:
+        result, holder = simulation_job(c, device, settings, end_stop_travel_m=end_stop_travel_m)
+    except SimulationInputError as exc:
+        raise CaseError(_name_simulation_option(str(exc))) from None
+    if json_output:
+        typer.echo(to_json(result), nl=False)
+        return
+    _print_simulation(result)
+    _print_notes(result)
+    from tmd.report.simulation_plots import simulation_files
+
+    folder = out if out is not None else Path("out") / f"{case.stem}-simulation"
+    files = {"results.json": to_json(result)} | simulation_files(result, holder["history"],
+                                                                 holder["maxima"])
+    written = write_all(folder, files, protected=c.input_files + (design_from,))
+    out_console.print(escape(f"wrote {len(written)} files to {folder} (results.json, "
+                             "time_history.csv, figures/)"), highlight=False, soft_wrap=True)
+
+
+def _name_simulation_option(message: str) -> str:
+    for key, flag in SIMULATION_OPTIONS.items():
+        if message.startswith(key):
+            return f"{flag}{message[len(key):]}"
+    return message
+
+
+def _simulated_device_from(c, path: Path, option: str) -> dict:
+    """The device to simulate, read from a results.json."""
+    if option == "tmd":
+        return {"kind": "tmd", "damper": _design_from(c, path, (None, None, None),
+                                                      (None, None, None))}
+    if option != "liquid-column":
+        raise CaseError(f"--option = {option!r}: allowed are tmd and liquid-column")
+    try:
+        data = json.loads(Path(path).read_text(encoding="utf-8"))
+        rows = [r for r in data["options"] if r["option"] == "liquid-column"]
+    except (OSError, ValueError, KeyError, TypeError) as exc:
+        raise CaseError(f"{path}: not a results.json of tmd compare ({exc})") from None
+    if not rows or not rows[0].get("mass_kg"):
+        raise CaseError(f"{path}: holds no sized liquid-column option")
+    return {"kind": "liquid-column", "row": rows[0]}
+
+
+def _print_simulation(result: dict) -> None:
+    """One table per load: simulated maxima against the spectral peaks."""
+    block = result["simulation"]
+    for row in block["by_load"]:
+        years = row.get("return_period_years")
+        title = (f"{result['case']['name']}: {block['records']} simulated records of "
+                 f"{block['duration_s']:g} s" + (f", {years:g}-year wind" if years else ""))
+        table = Table(title=title)
+        for name in ("response", "rms sim. / spectral", "mean max |x|", "Davenport",
+                     "Vanmarcke", "sim. / Davenport"):
+            table.add_column(name, justify="right")
+        entries = [("bare acc. (m/s²)", row["bare"]["acceleration"], "m_s2"),
+                   ("design acc. (m/s²)", row["design"]["acceleration"], "m_s2"),
+                   ("stroke (m)", row["design"]["stroke"], "m")]
+        for label, s, u in entries:
+            table.add_row(label, f"{s[f'sigma_{u}'] / s[f'sigma_spectral_{u}']:.4f}",
+                          f"{s[f'max_abs_mean_{u}']:.4g}", f"{s[f'davenport_peak_{u}']:.4g}",
+                          f"{s[f'vanmarcke_peak_two_sided_{u}']:.4g}",
+                          f"{s['max_abs_mean_to_davenport']:.3f}")
+        out_console.print(table)
+        acc = row["design"]["acceleration"]
+        if "fraction_of_records_over_limit" in acc:
+            out_console.print(f"records whose largest |a| exceeds the target: "
+                              f"{100 * acc['fraction_of_records_over_limit']:.1f}%",
+                              highlight=False)
+        if "end_stop_contacts_per_hour" in row["design"]:
+            contacts = row["design"]["end_stop_contacts_per_hour"]
+            out_console.print(f"end-stop contacts: {contacts:.2f} per hour", highlight=False)
+

@@ -166,6 +166,10 @@ class ResponseStatistics:
         g sigma with Davenport's g from nu = sqrt(m2 / m0).
     vanmarcke_peak_two_sided, vanmarcke_peak_one_sided : float
         Vanmarcke's mean maximum of |x| and of x.
+    upcrossing_hz : float
+        nu = sqrt(m2 / m0) from the spectral moments [Hz].
+    bandwidth : float
+        Vanmarcke's q = sqrt(1 - m1^2 / (m0 m2)) [-].
     """
 
     sigma: float
@@ -176,6 +180,8 @@ class ResponseStatistics:
     davenport_peak: float
     vanmarcke_peak_two_sided: float
     vanmarcke_peak_one_sided: float
+    upcrossing_hz: float
+    bandwidth: float
 
     def summary(self, unit_suffix: str, limit: float | None = None) -> dict:
         """The results.json block of this response.
@@ -207,6 +213,8 @@ class ResponseStatistics:
             f"davenport_peak_{s}": self.davenport_peak,
             f"vanmarcke_peak_two_sided_{s}": self.vanmarcke_peak_two_sided,
             f"vanmarcke_peak_one_sided_{s}": self.vanmarcke_peak_one_sided,
+            "upcrossing_hz": self.upcrossing_hz,
+            "bandwidth": self.bandwidth,
             "max_abs_mean_to_davenport": float(a.mean()) / self.davenport_peak,
             "max_abs_mean_to_vanmarcke": float(a.mean()) / self.vanmarcke_peak_two_sided,
         }
@@ -380,7 +388,8 @@ def simulate(frequency_hz: float, modal_mass_kg: float, damping_ratio: float,
             davenport_peak=float(davenport_peak_factor(nu, t)) * sigma_spectral,
             vanmarcke_peak_two_sided=float(vanmarcke_peak_factor(nu, q, t)) * sigma_spectral,
             vanmarcke_peak_one_sided=float(vanmarcke_peak_factor(nu, q, t, two_sided=False))
-            * sigma_spectral)
+            * sigma_spectral,
+            upcrossing_hz=nu, bandwidth=q)
     per_hour = rec_touch = None
     if contacts:
         c = np.concatenate(contacts)[keep]
