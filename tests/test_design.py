@@ -3,7 +3,7 @@
 import numpy as np
 import pytest
 
-from tmd.dampers.tmd import TunedMassDamper, den_hartog_tuning, warburton_white_force_tuning
+from tmd.dampers.tuned_mass import TunedMassDamper, den_hartog_tuning, warburton_white_force_tuning
 from tmd.design import LoadCase, bare_response, evaluate_tmd, least_mass, tune
 from tmd.performance import bare_sigma_acceleration, effective_damping_ratio
 from tmd.spectra import TabulatedSpectrum, WhiteSpectrum

@@ -12,7 +12,7 @@ import pytest
 from scipy import stats
 from scipy.optimize import brentq
 
-from tmd.dampers.tmd import TunedMassDamper
+from tmd.dampers.tuned_mass import TunedMassDamper
 from tmd.design import LoadCase, least_mass, tune
 from tmd.probabilistic import (
     Distribution,

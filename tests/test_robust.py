@@ -10,7 +10,7 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from tmd.dampers.tmd import TunedMassDamper
+from tmd.dampers.tuned_mass import TunedMassDamper
 from tmd.design import LoadCase, bare_response, evaluate_tmd, least_mass, tune
 from tmd.robust import (
     AerodynamicDamping,

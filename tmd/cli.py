@@ -23,7 +23,7 @@ from rich.table import Table
 
 from tmd.case import CaseError, load_case
 from tmd.constants import STANDARD_GRAVITY
-from tmd.dampers.tmd import TunedMassDamper
+from tmd.dampers.tuned_mass import TunedMassDamper
 from tmd.jobs import (
     CAUTIONS,
     compare_job,

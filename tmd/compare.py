@@ -7,11 +7,11 @@ results.json. Options (names of our own):
 
 =================  ==========================================================
 ``tmd``            translational TMD (:func:`tmd.design.least_mass`)
-``pendulum``       pendulum TMD (:mod:`tmd.dampers.pendulum`)
-``tmd-bank``       bank of TMDs, convex sizing (:mod:`tmd.dampers.bank`)
-``liquid-column``  tuned liquid column damper (:mod:`tmd.dampers.liquid_column`)
-``sloshing-tank``  screened rectangular sloshing tanks (:mod:`tmd.dampers.sloshing`)
-``viscous``        added viscous damping (:mod:`tmd.viscous`)
+``pendulum``       pendulum TMD (:mod:`tmd.sizing.pendulum`)
+``tmd-bank``       bank of TMDs, convex sizing (:mod:`tmd.sizing.bank`)
+``liquid-column``  tuned liquid column damper (:mod:`tmd.sizing.liquid_column`)
+``sloshing-tank``  screened rectangular sloshing tanks (:mod:`tmd.sizing.sloshing`)
+``viscous``        added viscous damping (:mod:`tmd.sizing.viscous`)
 =================  ==========================================================
 
 Every row also carries the worst peak acceleration over the detuning band
@@ -34,18 +34,17 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from tmd.dampers.bank import BankSettings, size_tmd_bank
-from tmd.dampers.liquid_column import (
-    ColumnSettings,
-    size_liquid_column,
-    velocity_proportional_fixed_point,
-)
-from tmd.dampers.pendulum import PendulumSettings, pendulum_design
-from tmd.dampers.sloshing import TankSettings, size_sloshing_tanks
+from tmd.dampers.liquid_column import ColumnSettings
+from tmd.dampers.pendulum import PendulumSettings
+from tmd.dampers.sloshing import TankSettings
 from tmd.design import LoadCase, Sizing, TmdDesign, least_mass
 from tmd.performance import assess, effective_damping_ratio
 from tmd.robust import band_maximum, peak_acceleration_band_max
-from tmd.viscous import ViscousSettings, peak_acceleration_with_dashpot, size_added_damping
+from tmd.sizing.bank import BankSettings, size_tmd_bank
+from tmd.sizing.liquid_column import size_liquid_column, velocity_proportional_fixed_point
+from tmd.sizing.pendulum import pendulum_design
+from tmd.sizing.sloshing import size_sloshing_tanks
+from tmd.sizing.viscous import ViscousSettings, peak_acceleration_with_dashpot, size_added_damping
 
 BAND_POINTS = 41
 

@@ -23,7 +23,7 @@ import numpy as np
 from scipy.optimize import brentq, minimize
 
 from tmd.dampers.absorber import Absorbers, single_tmd
-from tmd.dampers.tmd import TunedMassDamper, warburton_white_force_tuning
+from tmd.dampers.tuned_mass import TunedMassDamper, warburton_white_force_tuning
 from tmd.performance import assess, effective_damping_ratio
 from tmd.spectra import ForceSpectrum
 from tmd.structure import Mode

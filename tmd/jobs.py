@@ -13,7 +13,7 @@ from dataclasses import asdict
 
 from tmd import __version__
 from tmd.case import Case, CaseError, RobustnessTable, WindLoad
-from tmd.dampers.tmd import TunedMassDamper
+from tmd.dampers.tuned_mass import TunedMassDamper
 from tmd.design import LoadCase, Sizing, TmdDesign, bare_response, evaluate_tmd, least_mass, tune
 
 SCHEMA_VERSION = 1

@@ -49,7 +49,7 @@ from scipy.optimize.elementwise import find_root
 from scipy.special import ndtr
 
 from tmd.dampers.absorber import Absorbers
-from tmd.dampers.tmd import TunedMassDamper
+from tmd.dampers.tuned_mass import TunedMassDamper
 from tmd.design import LoadCase, TmdDesign, evaluate_tmd, tune
 from tmd.performance import assess
 from tmd.robust import StructureDamping, structure_damping_ratios

@@ -8,12 +8,12 @@ from tmd.case import load_case
 from tmd.dampers.pendulum import (
     PendulumSettings,
     multi_stage_frequency_hz,
-    pendulum_design,
     pendulum_length_m,
     swing_angle_rad,
 )
 from tmd.design import least_mass
 from tmd.jobs import load_case_of
+from tmd.sizing.pendulum import pendulum_design
 
 
 def test_length_is_g_over_omega_squared():

@@ -17,7 +17,7 @@ from pathlib import Path
 import numpy as np
 
 from tmd.dampers.absorber import Absorbers
-from tmd.dampers.tmd import TunedMassDamper
+from tmd.dampers.tuned_mass import TunedMassDamper
 from tmd.design import LoadCase, bare_response, evaluate_tmd, tune
 from tmd.jobs import design_block, design_job, load_case_of
 from tmd.performance import assess, effective_damping_ratio

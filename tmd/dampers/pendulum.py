@@ -7,8 +7,8 @@ m g / L for small swings, so its frequency is f_d = sqrt(g / L) / (2 pi) and
 
 independent of the mass (common practice; any dynamics text). The damper is
 therefore sized exactly as a translational TMD (coupling beta = 1 on the
-universal absorber; :func:`tmd.design.least_mass`) and its frequency is then
-set by the length.
+universal absorber; :func:`tmd.sizing.pendulum.size_pendulum`) and its
+frequency is then set by the length.
 
 Multi-stage pendulum: long periods need long pendulums (f = 0.15 Hz gives
 L = 11 m), so the length is often folded into n nested frames, each hanging
@@ -40,7 +40,6 @@ from dataclasses import dataclass
 import numpy as np
 
 from tmd.constants import STANDARD_GRAVITY
-from tmd.design import LoadCase, Sizing, TmdDesign, least_mass
 
 
 @dataclass(frozen=True)
@@ -58,59 +57,6 @@ class PendulumSettings:
     def __post_init__(self):
         if not (isinstance(self.stages, int) and self.stages >= 1):
             raise ValueError(f"stages must be an integer >= 1, got {self.stages!r}")
-
-
-@dataclass(frozen=True)
-class PendulumDesign:
-    """A sized pendulum damper: the TMD design plus its geometry (SI)."""
-
-    tmd: TmdDesign
-    length_m: float
-    stages: int
-    stage_length_m: float
-    peak_swing_angle_rad: float
-
-
-def size_pendulum(case: LoadCase, target_peak_m_s2: float, *, max_mass_ratio: float,
-                  max_stroke_m: float | None = None,
-                  settings: PendulumSettings = PendulumSettings()) -> tuple[Sizing,
-                                                                             PendulumDesign | None]:
-    """Least-mass pendulum damper meeting a peak-acceleration target.
-
-    Parameters
-    ----------
-    case : LoadCase
-    target_peak_m_s2 : float
-        Peak acceleration target [m/s^2].
-    max_mass_ratio : float
-        Largest mass ratio [-].
-    max_stroke_m : float, optional
-        Peak stroke (horizontal swing of the mass) limit [m].
-    settings : PendulumSettings
-
-    Returns
-    -------
-    (Sizing, PendulumDesign or None)
-        The TMD sizing (:func:`tmd.design.least_mass`) and the pendulum's
-        geometry (None when no damper is needed).
-
-    Notes
-    -----
-    L = g / (2 pi f_d)^2, stage length L / n, theta = asin(u_peak / L).
-    """
-    sizing = least_mass(case, target_peak_m_s2, max_mass_ratio=max_mass_ratio,
-                        max_stroke_m=max_stroke_m)
-    if sizing.design is None:
-        return sizing, None
-    return sizing, pendulum_design(sizing.design, settings)
-
-
-def pendulum_design(design: TmdDesign, settings: PendulumSettings = PendulumSettings()
-                    ) -> PendulumDesign:
-    """The pendulum geometry of a TMD design."""
-    length = float(pendulum_length_m(design.frequency_hz))
-    return PendulumDesign(design, length, settings.stages, length / settings.stages,
-                          float(swing_angle_rad(design.peak_stroke_m, length)))
 
 
 def pendulum_length_m(frequency_hz, gravity_m_s2: float = STANDARD_GRAVITY):

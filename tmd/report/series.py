@@ -13,7 +13,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from tmd.dampers.absorber import Absorbers, single_tmd
-from tmd.dampers.tmd import TunedMassDamper
+from tmd.dampers.tuned_mass import TunedMassDamper
 from tmd.design import LoadCase, tune
 from tmd.performance import assess
 from tmd.report.comfort import ComfortLimit

@@ -20,7 +20,7 @@ import numpy as np
 from scipy.optimize import minimize
 
 from tmd.dampers.absorber import Absorbers
-from tmd.dampers.tmd import TunedMassDamper
+from tmd.dampers.tuned_mass import TunedMassDamper
 from tmd.design import (
     DAMPING_RATIO_BOUNDS,
     FREQUENCY_RATIO_BOUNDS,

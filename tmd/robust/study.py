@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from tmd.dampers.tmd import TunedMassDamper
+from tmd.dampers.tuned_mass import TunedMassDamper
 from tmd.design import LoadCase
 from tmd.robust.minimax import RobustSizing, robust_least_mass
 from tmd.robust.sweeps import (

@@ -7,18 +7,18 @@ import pytest
 from scipy.integrate import quad
 
 from tmd.dampers.absorber import Absorbers
-from tmd.dampers.liquid_column import velocity_proportional_fixed_point
 from tmd.dampers.sloshing import (
     TankSettings,
     intrinsic_damping_ratio,
     screen_depth_integral_m,
-    size_sloshing_tanks,
     sloshing_frequency_hz,
     sloshing_mass_fraction,
     tank_length_m,
     wall_elevation_per_displacement,
 )
 from tmd.design import LoadCase
+from tmd.sizing.liquid_column import velocity_proportional_fixed_point
+from tmd.sizing.sloshing import size_sloshing_tanks
 from tmd.spectra import WhiteSpectrum
 from tmd.structure import Mode
 

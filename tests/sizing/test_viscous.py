@@ -5,14 +5,14 @@ import math
 import pytest
 
 from tmd.design import LoadCase
-from tmd.spectra import WhiteSpectrum
-from tmd.structure import Mode
-from tmd.viscous import (
+from tmd.sizing.viscous import (
     ViscousSettings,
     damper_constant_n_s_per_m,
     size_added_damping,
     velocity_statistics,
 )
+from tmd.spectra import WhiteSpectrum
+from tmd.structure import Mode
 
 
 def test_damper_constant_hand_value():

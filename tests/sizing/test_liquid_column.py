@@ -14,10 +14,9 @@ from tmd.dampers.liquid_column import (
     column_length_m,
     harmonic_equivalent_damping_ratio,
     random_equivalent_damping_ratio,
-    size_liquid_column,
-    velocity_proportional_fixed_point,
 )
 from tmd.design import LoadCase
+from tmd.sizing.liquid_column import size_liquid_column, velocity_proportional_fixed_point
 from tmd.spectra import WhiteSpectrum
 from tmd.structure import Mode
 

@@ -4,9 +4,9 @@ import numpy as np
 import pytest
 
 from tmd.dampers.absorber import Absorbers
-from tmd.dampers.bank import BankSettings, size_tmd_bank
 from tmd.design import LoadCase, least_mass
 from tmd.performance import assess
+from tmd.sizing.bank import BankSettings, size_tmd_bank
 from tmd.spectra import WhiteSpectrum
 from tmd.structure import Mode
 
