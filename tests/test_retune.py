@@ -9,7 +9,7 @@ import pytest
 from typer.testing import CliRunner
 
 from tmd.cli import app
-from tmd.dampers.tmd import TunedMassDamper
+from tmd.dampers.tuned_mass import TunedMassDamper
 from tmd.design import LoadCase, evaluate_tmd, tune
 from tmd.retune import BuiltDamper, measured_structure, retune_damper
 from tmd.spectra import TabulatedSpectrum
