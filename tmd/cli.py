@@ -33,7 +33,7 @@ from tmd.jobs import (
     sweep_job,
     wind_job,
 )
-from tmd.outputs import OutputFolder, to_json
+from tmd.outputs import OutputFolder, to_json, write_all
 from tmd.rules import FrequencyRatio, InputError, Ratio, require
 
 app = typer.Typer(add_completion=False, no_args_is_help=True,

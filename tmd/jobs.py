@@ -407,7 +407,8 @@ def _simulated_device(load: LoadCase, device: dict, end_stop_travel_m):
         if end_stop_travel_m is None:
             return absorbers, None, None, None
         return absorbers, NonlinearAbsorber(np.zeros(1), np.full(1, end_stop_travel_m)), None, None
-    from tmd.dampers.liquid_column import column_damping_gain, velocity_proportional_fixed_point
+    from tmd.dampers.liquid_column import column_damping_gain
+    from tmd.sizing.liquid_column import velocity_proportional_fixed_point
 
     row = device["row"]
     length = row["dimensions"]["liquid_length_m"]
