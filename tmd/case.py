@@ -21,8 +21,7 @@ from typing import Annotated, Any, Literal
 
 from pydantic import BaseModel, ConfigDict, Field, ValidationError, model_validator
 
-from tmd.compare import OPTIONS
-from tmd.design import OBJECTIVES
+from tmd import defaults
 from tmd.loads import (
     COHERENCE_MODELS,
     Building,
@@ -30,6 +29,7 @@ from tmd.loads import (
     modal_force_spectrum,
     reference_height,
 )
+from tmd.registry import OBJECTIVES, OPTION_NAMES
 from tmd.rules import (
     MAX_OPTION_NAMES,
     MAX_RETURN_PERIODS,
@@ -50,8 +50,6 @@ from tmd.rules import (
 from tmd.spectra import ForceSpectrum, SpectrumFileError, read_force_psd_csv, read_text_file
 from tmd.structure import Mode
 from tmd.wind import SPECTRUM_MODELS, TERRAIN_CATEGORIES, Site
-
-OPTION_NAMES = tuple(OPTIONS)
 
 
 class CaseError(InputError):
@@ -80,14 +78,15 @@ class LoadTable(_Table):
 
 class TargetTable(_Table):
     peak_acceleration_m_s2: _capped(10.0)
-    duration_s: Annotated[float, Field(ge=1, le=86_400, strict=True, allow_inf_nan=False)] = 600.0
+    duration_s: Annotated[float, Field(ge=1, le=86_400, strict=True,
+                                       allow_inf_nan=False)] = defaults.DURATION_S
     return_period_years: ReturnPeriod | None = None
 
 
 class DamperTable(_Table):
     objective: Literal[OBJECTIVES] = "acceleration"  # type: ignore[valid-type]
     mass_ratio: Ratio | None = None
-    max_mass_ratio: Ratio = 0.05
+    max_mass_ratio: Ratio = defaults.MAX_MASS_RATIO
     max_stroke_m: _capped(100.0) | None = None
 
     @model_validator(mode="after")
@@ -135,9 +134,9 @@ class ProbabilisticTable(_Table):
 
 
 class RobustnessTable(_Table):
-    frequency_band: Band = 0.15
+    frequency_band: Band = defaults.FREQUENCY_BAND
     robust_design: bool = True
-    sweep_range: Annotated[float, Field(gt=0, lt=0.6, allow_inf_nan=False)] = 0.20
+    sweep_range: Annotated[float, Field(gt=0, lt=0.6, allow_inf_nan=False)] = defaults.SWEEP_RANGE
     probabilistic: ProbabilisticTable | None = None
 
 

@@ -25,7 +25,6 @@ from tmd.case import CaseError, load_case
 from tmd.constants import STANDARD_GRAVITY
 from tmd.dampers.tuned_mass import TunedMassDamper
 from tmd.jobs import (
-    CAUTIONS,
     compare_job,
     design_job,
     evaluate_job,
@@ -35,6 +34,7 @@ from tmd.jobs import (
 )
 from tmd.outputs import OutputFolder, to_json, write_all
 from tmd.rules import FrequencyRatio, InputError, Ratio, require
+from tmd.schema import CAUTIONS
 
 app = typer.Typer(add_completion=False, no_args_is_help=True,
                   help="Size passive dampers for a wind-excited building mode.")

@@ -37,8 +37,10 @@ import numpy as np
 from tmd.dampers.liquid_column import ColumnSettings
 from tmd.dampers.pendulum import PendulumSettings
 from tmd.dampers.sloshing import TankSettings
+from tmd.defaults import FREQUENCY_BAND, MAX_MASS_RATIO
 from tmd.design import LoadCase, Sizing, TmdDesign, least_mass
 from tmd.performance import assess, effective_damping_ratio
+from tmd.registry import OPTION_NAMES
 from tmd.robust import band_maximum, peak_acceleration_band_max
 from tmd.sizing.bank import BankSettings, size_tmd_bank
 from tmd.sizing.liquid_column import size_liquid_column, velocity_proportional_fixed_point
@@ -78,8 +80,8 @@ class _Job:
 
 
 def compare_options(case: LoadCase, target_peak_m_s2: float, *, enabled=None,
-                    max_mass_ratio: float = 0.05, max_stroke_m: float | None = None,
-                    frequency_band: float = 0.1,
+                    max_mass_ratio: float = MAX_MASS_RATIO, max_stroke_m: float | None = None,
+                    frequency_band: float = FREQUENCY_BAND,
                     settings: OptionSettings | None = None) -> list[dict]:
     """Size every enabled passive option and describe each in one dict.
 
@@ -259,6 +261,8 @@ OPTIONS: dict[str, Callable[[_Job], dict]] = {
     "sloshing-tank": _tank_row,
     "viscous": _viscous_row,
 }
+if tuple(OPTIONS) != OPTION_NAMES:  # the registry the case file validates against
+    raise ImportError("tmd.compare.OPTIONS must implement exactly tmd.registry.OPTION_NAMES")
 
 
 def _measured(job: _Job, a, mass_ratio, peaks) -> dict:

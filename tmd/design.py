@@ -24,12 +24,13 @@ from scipy.optimize import brentq, minimize
 
 from tmd.dampers.absorber import Absorbers, single_tmd
 from tmd.dampers.tuned_mass import TunedMassDamper, warburton_white_force_tuning
+from tmd.defaults import DURATION_S
 from tmd.performance import assess, effective_damping_ratio
+from tmd.registry import OBJECTIVES, STATISTICS
+from tmd.schema import BareResponse, TmdDesign
 from tmd.spectra import ForceSpectrum
 from tmd.structure import Mode
 
-OBJECTIVES = ("acceleration", "displacement")
-STATISTICS = ("peak", "rms")
 FREQUENCY_RATIO_BOUNDS = (0.5, 1.5)
 DAMPING_RATIO_BOUNDS = (1e-3, 0.6)
 _STEP = 1e-6  # central-difference step in (f_d/f_s, ln zeta_d)
@@ -57,51 +58,13 @@ class LoadCase:
 
     mode: Mode
     spectrum: ForceSpectrum
-    duration_s: float = 600.0
+    duration_s: float = DURATION_S
     shape_factor: float = 1.0
 
     def assess(self, absorbers, **kw):
         m = self.mode
         return assess(m.frequency_hz, m.modal_mass_kg, m.damping_ratio, absorbers,
                       self.spectrum, self.duration_s, shape_factor=self.shape_factor, **kw)
-
-
-@dataclass(frozen=True)
-class BareResponse:
-    """The building without a damper."""
-
-    sigma_acceleration_m_s2: float
-    peak_acceleration_m_s2: float
-    peak_factor: float
-    upcrossing_hz: float
-    sigma_displacement_m: float
-
-
-@dataclass(frozen=True)
-class TmdDesign:
-    """A TMD with every number its specification needs (SI units)."""
-
-    mass_ratio: float
-    mass_kg: float
-    frequency_ratio: float
-    frequency_hz: float
-    damping_ratio: float
-    stiffness_n_per_m: float
-    damping_n_s_per_m: float
-    sigma_acceleration_m_s2: float
-    peak_acceleration_m_s2: float
-    peak_factor: float
-    sigma_stroke_m: float
-    peak_stroke_m: float
-    peak_damper_force_n: float
-    sigma_displacement_m: float
-    effective_damping_ratio: float
-    added_damping_ratio: float
-    meets_target: bool | None
-
-    @property
-    def damper(self) -> TunedMassDamper:
-        return TunedMassDamper(self.mass_ratio, self.frequency_ratio, self.damping_ratio)
 
 
 @dataclass(frozen=True)

@@ -14,28 +14,9 @@ from dataclasses import asdict
 from tmd import __version__
 from tmd.case import Case, CaseError, RobustnessTable, WindLoad
 from tmd.dampers.tuned_mass import TunedMassDamper
+from tmd.defaults import FREQUENCY_BAND
 from tmd.design import LoadCase, Sizing, TmdDesign, bare_response, evaluate_tmd, least_mass, tune
-
-SCHEMA_VERSION = 1
-
-CAUTIONS = (
-    "Preliminary sizing only: the results depend on the modal properties and the wind load "
-    "given as inputs.",
-    "Wind-tunnel data and the measured properties of the completed structure govern final "
-    "design.",
-    "Along-wind results alone may be unconservative for slender towers where across-wind "
-    "response governs; supply an across-wind modal force spectrum when one is available.",
-    "A damper must be re-tuned to the as-built building's measured frequency and damping.",
-    "Local codes and licensed professional practice take precedence over these results.",
-)
-
-DESIGN_KEYS = (
-    "mass_ratio", "mass_kg", "frequency_ratio", "frequency_hz", "damping_ratio",
-    "stiffness_n_per_m", "damping_n_s_per_m", "sigma_acceleration_m_s2",
-    "peak_acceleration_m_s2", "peak_factor", "sigma_stroke_m", "peak_stroke_m",
-    "peak_damper_force_n", "sigma_displacement_m", "effective_damping_ratio",
-    "added_damping_ratio", "meets_target",
-)
+from tmd.schema import CAUTIONS, SCHEMA_VERSION, design_block
 
 
 def load_case_of(case: Case, wind_load: WindLoad | None = None) -> LoadCase:
@@ -69,12 +50,6 @@ def by_return_period(case: Case, design: TmdDesign | None) -> list[dict]:
                 "peak_stroke_m", "peak_damper_force_n", "effective_damping_ratio")}
         rows.append(row)
     return rows
-
-
-def design_block(design: TmdDesign) -> dict:
-    """The ``design`` block of results.json."""
-    values = asdict(design)
-    return {key: values[key] for key in DESIGN_KEYS}
 
 
 def _header(case: Case) -> dict:
@@ -202,7 +177,7 @@ def compare_job(case: Case) -> dict:
     opts = case.tables.options
     band = None if opts is None else opts.frequency_band
     if band is None:
-        band = case.tables.robustness.frequency_band if case.tables.robustness else 0.1
+        band = case.tables.robustness.frequency_band if case.tables.robustness else FREQUENCY_BAND
 
     def build():
         load = load_case_of(case)
@@ -301,7 +276,7 @@ def retune_job(case: Case, installed, frequency_hz: float, *, damping_ratio: flo
 
     if adjustment_band is None:
         r = case.tables.robustness
-        adjustment_band = r.frequency_band if r is not None else RETUNE_ADJUSTMENT_BAND
+        adjustment_band = r.frequency_band if r is not None else FREQUENCY_BAND
     load = case.design_wind_load
     aero = load.aerodynamic_damping_ratio if load is not None else 0.0
     structure = measured_structure(case.mode, case.mode.damping_ratio, aero, frequency_hz,
@@ -319,7 +294,6 @@ def retune_job(case: Case, installed, frequency_hz: float, *, damping_ratio: flo
     return result
 
 
-RETUNE_ADJUSTMENT_BAND = 0.15  # the report's default re-tuning range (common practice)
 
 
 def simulation_job(case: Case, device: dict, settings, *, end_stop_travel_m: float | None = None

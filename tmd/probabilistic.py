@@ -50,9 +50,11 @@ from scipy.special import ndtr
 
 from tmd.dampers.absorber import Absorbers
 from tmd.dampers.tuned_mass import TunedMassDamper
+from tmd.defaults import MAX_MASS_RATIO
 from tmd.design import LoadCase, TmdDesign, evaluate_tmd, tune
 from tmd.performance import assess
 from tmd.robust import StructureDamping, structure_damping_ratios
+from tmd.schema import design_block
 
 NORMAL_FLOOR = 0.02      # smallest factor a normal variable is allowed to take
 STANDARD_NORMAL_SPAN = 6.0  # the u_s grid covers [-6, 6]; beyond, Phi < 1e-9
@@ -160,7 +162,7 @@ class ProbabilisticSizing:
 
 def probabilistic_study(case: LoadCase, nominal: TunedMassDamper, target_peak_m_s2: float,
                         uncertainty: Uncertainty, *, robust: TunedMassDamper | None = None,
-                        max_mass_ratio: float = 0.05, max_stroke_m: float | None = None,
+                        max_mass_ratio: float = MAX_MASS_RATIO, max_stroke_m: float | None = None,
                         structure_damping_ratio: StructureDamping | None = None) -> dict:
     """The ``probabilistic`` block: exceedance probabilities and the least mass for one.
 
@@ -202,12 +204,10 @@ def probabilistic_study(case: LoadCase, nominal: TunedMassDamper, target_peak_m_
 
     sized = None
     if uncertainty.exceedance_probability is not None:
-        from tmd.jobs import DESIGN_KEYS, design_block  # jobs is the owner of the block
-
         s = least_mass_for_probability(case, target_peak_m_s2, uncertainty,
                                        max_mass_ratio=max_mass_ratio, max_stroke_m=max_stroke_m,
                                        structure_damping_ratio=structure_damping_ratio)
-        sized = (design_block(s.design) if s.design else dict.fromkeys(DESIGN_KEYS)) | {
+        sized = design_block(s.design) | {
             "exceedance_probability": s.exceedance_probability,
             "meets_probability": s.meets_probability, "governed_by": s.governed_by,
             "message": s.message}

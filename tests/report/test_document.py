@@ -11,8 +11,8 @@ import numpy as np
 import pytest
 from matplotlib.image import imread
 
-from tmd.report.assemble import CAUTIONS
 from tmd.report.tables import format_value
+from tmd.schema import CAUTIONS
 
 DIGIT = re.compile(r"[0-9]")
 NUMBER = re.compile(r"^-?[0-9][0-9,]*(\.[0-9]+)?(e[+-][0-9]+)?$")

@@ -13,6 +13,7 @@ from __future__ import annotations
 import numpy as np
 
 from tmd.case import Case
+from tmd.defaults import FREQUENCY_BAND
 from tmd.jobs import load_case_of
 from tmd.report import plots, series
 from tmd.report.comfort import comfort_limits
@@ -30,29 +31,13 @@ from tmd.report.tables import (
     record_table,
     retuning_table,
 )
+from tmd.schema import CAUTIONS, DESIGN_REPORT_ORDER
 
-DEFAULT_FREQUENCY_BAND = 0.15  # re-tuning range when the case states no band (common practice)
-DESIGN_ORDER = (
-    "mass_kg", "mass_ratio", "frequency_hz", "frequency_ratio", "damping_ratio",
-    "stiffness_n_per_m", "damping_n_s_per_m", "peak_stroke_m", "sigma_stroke_m",
-    "peak_damper_force_n", "peak_acceleration_m_s2", "sigma_acceleration_m_s2", "peak_factor",
-    "sigma_displacement_m", "effective_damping_ratio", "added_damping_ratio", "meets_target",
-)
 SWEEP_TITLES = (
     ("sweep", "Detuning sweep of the design (structure frequency factor)"),
     ("sweep_bare", "Detuning sweep of the bare building"),
     ("sweep_damper_frequency", "Damper spring off its design value (damper frequency factor)"),
     ("sweep_damper_damping", "Damper dashpot off its design value (damper damping factor)"),
-)
-CAUTIONS = (
-    "Preliminary sizing only: the results depend on the modal properties and the wind load "
-    "given as inputs.",
-    "Wind-tunnel testing and the measured frequencies and damping of the completed structure "
-    "govern final design.",
-    "Along-wind results alone may be unconservative for slender towers where across-wind "
-    "response governs; supply an across-wind modal force spectrum when one is available.",
-    "The damper must be re-tuned to the as-built building.",
-    "Local codes and licensed professional practice take precedence over these results.",
 )
 CONVENTIONS = (
     "SI units throughout; frequencies in Hz.",
@@ -258,7 +243,7 @@ class _Report:
         else:
             blocks.append(self._table(key_value_table(
                 "design", "Damper specification (translational TMD)", design, "design",
-                keys=DESIGN_ORDER)))
+                keys=DESIGN_REPORT_ORDER)))
             band, source = self._band()
             blocks.append(self._table(retuning_table(design, band, source)))
             entries = r.get("by_return_period") or []
@@ -280,7 +265,7 @@ class _Report:
             "frequency_band")
         if stated is not None:
             return float(stated), "the case's frequency band"
-        return DEFAULT_FREQUENCY_BAND, "default band; state [robustness] frequency_band"
+        return FREQUENCY_BAND, "default band; state [robustness] frequency_band"
 
     def _response_figures(self) -> list:
         r, design = self.results, self.design
@@ -373,7 +358,7 @@ class _Report:
         return Section("Robustness to the building's real frequency", blocks)
 
     def _robust_table(self, design: dict, robust: dict) -> Table:
-        keys = [k for k in DESIGN_ORDER if k in robust] + [
+        keys = [k for k in DESIGN_REPORT_ORDER if k in robust] + [
             k for k in ("frequency_band", "peak_acceleration_band_max_m_s2") if k in robust]
         rows = []
         for key in keys:

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 from tmd.dampers.tuned_mass import TunedMassDamper
+from tmd.defaults import FREQUENCY_BAND, MAX_MASS_RATIO
 from tmd.design import LoadCase
 from tmd.robust.minimax import RobustSizing, robust_least_mass
 from tmd.robust.sweeps import (
@@ -16,12 +17,13 @@ from tmd.robust.sweeps import (
     sweep_damper_frequency,
     sweep_structure_frequency,
 )
+from tmd.schema import design_block
 
 # --- one call per job -------------------------------------------------------
 
 def robustness_study(case: LoadCase, nominal: TunedMassDamper, target_peak_m_s2: float, *,
-                     frequency_band: float = 0.15, sweep_range: float = SWEEP_RANGE,
-                     robust_design: bool = True, max_mass_ratio: float = 0.05,
+                     frequency_band: float = FREQUENCY_BAND, sweep_range: float = SWEEP_RANGE,
+                     robust_design: bool = True, max_mass_ratio: float = MAX_MASS_RATIO,
                      max_stroke_m: float | None = None,
                      structure_damping_ratio: StructureDamping | None = None,
                      probabilistic=None) -> dict:
@@ -105,8 +107,9 @@ def robustness_study(case: LoadCase, nominal: TunedMassDamper, target_peak_m_s2:
     return result
 
 
-def design_sweeps(case: LoadCase, damper: TunedMassDamper, *, frequency_band: float = 0.15,
-                  sweep_range: float = SWEEP_RANGE, spring_range: float = SPRING_RANGE,
+def design_sweeps(case: LoadCase, damper: TunedMassDamper, *,
+                  frequency_band: float = FREQUENCY_BAND, sweep_range: float = SWEEP_RANGE,
+                  spring_range: float = SPRING_RANGE,
                   dashpot_range: float = DASHPOT_RANGE,
                   structure_damping_ratio: StructureDamping | None = None) -> dict:
     """Every sweep of one given design, e.g. an as-built damper (``tmd sweep``).
@@ -156,10 +159,7 @@ def robust_design_block(sizing: RobustSizing) -> dict:
     ``worst_structure_frequency_factor`` [-], ``meets_target_across_band``,
     ``governed_by`` and ``message``.
     """
-    from tmd.jobs import DESIGN_KEYS, design_block  # jobs is the owner of the block
-
-    block = (design_block(sizing.design) if sizing.design is not None
-             else dict.fromkeys(DESIGN_KEYS))
+    block = design_block(sizing.design)
     worst = sizing.band_maximum
     return block | {
         "frequency_band": sizing.frequency_band,

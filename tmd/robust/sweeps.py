@@ -19,12 +19,10 @@ from scipy.optimize import minimize_scalar
 
 from tmd.dampers.absorber import Absorbers
 from tmd.dampers.tuned_mass import TunedMassDamper
+from tmd.defaults import DASHPOT_RANGE, SPRING_RANGE, SWEEP_RANGE
 from tmd.design import LoadCase
 from tmd.performance import assess, effective_damping_ratio
 
-SWEEP_RANGE = 0.20          # structure frequency factor sweep, +/-
-SPRING_RANGE = 0.10         # as-built spring stiffness, +/-
-DASHPOT_RANGE = 0.30        # as-built dashpot, +/-
 SWEEP_POINTS = 41           # s step 0.01 over +/-20%
 DAMPER_SWEEP_POINTS = 21
 BAND_SEARCH_POINTS = 81     # grid of the band-maximum search before refinement
