@@ -16,7 +16,7 @@ from pathlib import Path
 
 import numpy as np
 
-from tmd.design import LoadCase, least_mass
+from tmd.design import LoadedMode, least_mass
 from tmd.robust import assess_structure_factors, factor_grid, robustness_study
 from tmd.spectra import read_force_psd_csv
 from tmd.structure import Mode
@@ -36,7 +36,7 @@ def best_time(fn):
 
 def main():
     warnings.simplefilter("ignore")
-    case = LoadCase(Mode(0.17, 1.9e7, 0.012), read_force_psd_csv(CSV), 600.0)
+    case = LoadedMode(Mode(0.17, 1.9e7, 0.012), read_force_psd_csv(CSV), 600.0)
     damper = least_mass(case, 0.10, max_mass_ratio=0.05).design.damper
     s = factor_grid(0.20, 41)
 

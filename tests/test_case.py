@@ -5,7 +5,7 @@ from pathlib import Path
 
 import pytest
 
-from tmd.case import CaseError, load_case
+from tmd.case import CaseError, read_case
 
 CASES = Path(__file__).resolve().parents[1] / "cases"
 GOOD = """name = "test tower"
@@ -33,7 +33,7 @@ def _case(tmp_path, text):
 
 
 def test_good_case_loads(tmp_path):
-    c = load_case(_case(tmp_path, GOOD))
+    c = read_case(_case(tmp_path, GOOD))
     assert c.mode.frequency_hz == 0.18 and c.damper.max_stroke_m == 1.2
     assert c.damper.mass_ratio is None and c.target_peak_m_s2 == 0.15
 
@@ -62,7 +62,7 @@ def test_bad_values_are_named(tmp_path, old, new, needles):
     assert old in GOOD
     path = _case(tmp_path, GOOD.replace(old, new))
     with pytest.raises(CaseError) as err:
-        load_case(path)
+        read_case(path)
     message = str(err.value)
     assert str(path) in message
     for needle in needles:
@@ -72,24 +72,24 @@ def test_bad_values_are_named(tmp_path, old, new, needles):
 def test_unknown_table_is_suggested(tmp_path):
     path = _case(tmp_path, GOOD.replace("[damper]", "[dampr]"))
     with pytest.raises(CaseError, match="dampr: unknown key; did you mean 'damper'"):
-        load_case(path)
+        read_case(path)
 
 
 def test_fixed_mass_ratio_above_maximum_is_rejected(tmp_path):
     path = _case(tmp_path, GOOD.replace("max_mass_ratio = 0.05",
                                         "max_mass_ratio = 0.05\nmass_ratio = 0.08"))
     with pytest.raises(CaseError, match="mass_ratio = 0.08 exceeds max_mass_ratio"):
-        load_case(path)
+        read_case(path)
 
 
 def test_not_toml_is_reported(tmp_path):
     path = _case(tmp_path, "name = \n")
     with pytest.raises(CaseError, match="not valid TOML"):
-        load_case(path)
+        read_case(path)
 
 
 def test_bad_csv_row_is_named(tmp_path):
     path = _case(tmp_path, GOOD)
     (tmp_path / "force.csv").write_text("frequency_hz,psd_n2_per_hz\n0.1,1\n0.2,-1\n")
     with pytest.raises(CaseError, match=r"force\.csv: line 3: psd_n2_per_hz = -1\.0"):
-        load_case(path)
+        read_case(path)

@@ -14,7 +14,7 @@ from pathlib import Path
 
 import pytest
 
-from tmd.case import CaseError, load_case
+from tmd.case import CaseError, read_case
 from tmd.spectra import SpectrumFileError, read_force_psd_csv
 
 CASES = Path(__file__).resolve().parents[1] / "cases"
@@ -71,7 +71,7 @@ def _csv_case(tmp_path, text=HARBOUR, csv_bytes=None):
 def test_absurd_or_loose_values_are_refused_with_the_rule(tmp_path, old, new, needle):
     path = _wind_case(tmp_path, old, new)
     with pytest.raises(CaseError) as err:
-        load_case(path)
+        read_case(path)
     message = str(err.value)
     assert str(path) in message and needle in message, message
 
@@ -79,17 +79,17 @@ def test_absurd_or_loose_values_are_refused_with_the_rule(tmp_path, old, new, ne
 def test_option_names_are_bounded_and_unique(tmp_path):
     text = HARBOUR + "\n[options]\nenabled = [\"tmd\", \"viscous\", \"tmd\"]\n"
     with pytest.raises(CaseError, match=r"\[options\] enabled = .*'tmd' is given twice"):
-        load_case(_csv_case(tmp_path, text))
+        read_case(_csv_case(tmp_path, text))
     text = HARBOUR + "\n[options]\nenabled = \"tmd\"\n"
     with pytest.raises(CaseError, match=r"\[options\] enabled = 'tmd': must be a list"):
-        load_case(_csv_case(tmp_path, text))
+        read_case(_csv_case(tmp_path, text))
 
 
 def test_unusual_values_inside_the_range_warn(tmp_path):
     path = _wind_case(tmp_path, "basic_speed_m_s = 30.0", "basic_speed_m_s = 60.0")
-    notes = load_case(path).notes
+    notes = read_case(path).notes
     assert any("[wind] basic_speed_m_s = 60 m/s is unusual" in n for n in notes), notes
-    assert not load_case(CASES / "kestrel_point.toml").notes  # the demo is ordinary
+    assert not read_case(CASES / "kestrel_point.toml").notes  # the demo is ordinary
 
 
 def test_derived_damping_names_the_inputs_that_made_it(tmp_path):
@@ -97,7 +97,7 @@ def test_derived_damping_names_the_inputs_that_made_it(tmp_path):
     path = _wind_case(tmp_path, "evaluation_height_m = 183.0",
                       "evaluation_height_m = 183.0\nmass_per_length_kg_m = 1.0")
     with pytest.raises(CaseError) as err:
-        load_case(path)
+        read_case(path)
     message = str(err.value)
     assert "derived total damping ratio" in message and "must lie in [0.0001, 0.3]" in message
     for needle in ("[mode] damping_ratio = 0.012", "[building] mass_per_length_kg_m = 1",
@@ -114,7 +114,7 @@ def test_derived_damping_names_the_inputs_that_made_it(tmp_path):
 def test_a_low_damper_level_is_named_too(tmp_path):
     path = _wind_case(tmp_path, "damper_height_m = 186.0", "damper_height_m = 1.0")
     with pytest.raises(CaseError, match=r"damper_height_m = 1\b.*Check"):
-        load_case(path)
+        read_case(path)
 
 
 def test_utf8_bom_is_accepted_in_toml_and_csv(tmp_path):
@@ -122,8 +122,8 @@ def test_utf8_bom_is_accepted_in_toml_and_csv(tmp_path):
     csv = (CASES / "harbourline_force.csv").read_bytes()
     path = _csv_case(tmp_path, csv_bytes=bom + csv.replace(b"\n", b"\r\n"))
     path.write_bytes(bom + HARBOUR.encode("utf-8"))
-    case = load_case(path)
-    reference = load_case(CASES / "harbourline_residences.toml")
+    case = read_case(path)
+    reference = read_case(CASES / "harbourline_residences.toml")
     assert case.spectrum.psd_n2_per_hz.tolist() == reference.spectrum.psd_n2_per_hz.tolist()
 
 
@@ -131,7 +131,7 @@ def test_non_utf8_files_are_named(tmp_path):
     path = tmp_path / "case.toml"
     path.write_bytes(HARBOUR.replace("Harbourline", "Harbourlin\u00e9").encode("latin-1"))
     with pytest.raises(CaseError, match=r"case\.toml: the case file is not UTF-8 text \(byte 0xe9"):
-        load_case(path)
+        read_case(path)
     csv = tmp_path / "f.csv"
     csv.write_bytes(b"frequency_hz,psd_n2_per_hz\n0.1,1\n0.2,\xb52\n")
     with pytest.raises(SpectrumFileError, match=r"f\.csv: the force spectrum is not UTF-8 text "

@@ -7,7 +7,7 @@ import pytest
 from typer.testing import CliRunner
 
 from tests.consistency import assert_consistent_results
-from tmd.case import CaseError, load_case
+from tmd.case import CaseError, read_case
 from tmd.cli import app
 
 CASES = Path(__file__).resolve().parents[1] / "cases"
@@ -100,7 +100,7 @@ def test_design_reports_every_return_period(tmp_path):
 def test_bad_wind_input_is_named(tmp_path, old, new, needle):
     assert old in WIND
     with pytest.raises(CaseError) as err:
-        load_case(_write(tmp_path, WIND.replace(old, new)))
+        read_case(_write(tmp_path, WIND.replace(old, new)))
     assert needle in str(err.value)
 
 

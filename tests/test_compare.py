@@ -5,9 +5,9 @@ import warnings
 import pytest
 
 from tests.consistency import assert_consistent_results
-from tmd.case import load_case
+from tmd.case import read_case
 from tmd.compare import OPTIONS, compare_options
-from tmd.jobs import design_job, load_case_of
+from tmd.jobs import design_job, loaded_mode_of
 
 CASE_FILE = "cases/harbourline_residences.toml"
 COMMON = ("option", "mass_kg", "mass_ratio", "peak_acceleration_m_s2", "peak_stroke_m",
@@ -17,10 +17,10 @@ COMMON = ("option", "mass_kg", "mass_ratio", "peak_acceleration_m_s2", "peak_str
 
 @pytest.fixture(scope="module")
 def rows():
-    case = load_case(CASE_FILE)
+    case = read_case(CASE_FILE)
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
-        return case, compare_options(load_case_of(case), case.target_peak_m_s2,
+        return case, compare_options(loaded_mode_of(case), case.target_peak_m_s2,
                                      max_mass_ratio=case.damper.max_mass_ratio,
                                      max_stroke_m=case.damper.max_stroke_m, frequency_band=0.1)
 
@@ -72,6 +72,6 @@ def test_verdicts_agree_with_the_numbers_and_the_band_is_no_better(rows):
 
 
 def test_unknown_option_is_refused():
-    case = load_case(CASE_FILE)
+    case = read_case(CASE_FILE)
     with pytest.raises(ValueError, match="unknown option"):
-        compare_options(load_case_of(case), 0.1, enabled=["tmd", "flywheel"])
+        compare_options(loaded_mode_of(case), 0.1, enabled=["tmd", "flywheel"])

@@ -4,7 +4,7 @@ import numpy as np
 import pytest
 
 from tmd.dampers.tuned_mass import TunedMassDamper, den_hartog_tuning, warburton_white_force_tuning
-from tmd.design import LoadCase, bare_response, evaluate_tmd, least_mass, tune
+from tmd.design import LoadedMode, bare_response, evaluate_tmd, least_mass, tune
 from tmd.performance import bare_sigma_acceleration, effective_damping_ratio
 from tmd.spectra import TabulatedSpectrum, WhiteSpectrum
 from tmd.structure import Mode
@@ -21,7 +21,7 @@ def along_wind_like_spectrum():
 
 @pytest.fixture(scope="module")
 def wind_case():
-    return LoadCase(Mode(0.18, 2.0e7, 0.012), along_wind_like_spectrum(), 600.0)
+    return LoadedMode(Mode(0.18, 2.0e7, 0.012), along_wind_like_spectrum(), 600.0)
 
 
 @pytest.mark.parametrize("mu", [0.01, 0.03, 0.05])
@@ -30,7 +30,7 @@ def test_white_force_displacement_optimum_matches_warburton(mu):
     # primary, minimum displacement variance:
     #   f = sqrt(1 + mu/2)/(1 + mu), zeta^2 = mu (1 + 3 mu/4) / (4 (1 + mu)(1 + mu/2)).
     # The issue asks for 1e-3 in f and zeta; the optimiser reaches ~1e-8.
-    case = LoadCase(Mode(1.0, 1.0, 0.0), WhiteSpectrum(1.0))
+    case = LoadedMode(Mode(1.0, 1.0, 0.0), WhiteSpectrum(1.0))
     t = tune(case, mu, objective="displacement", statistic="rms")
     f_ref = np.sqrt(1 + mu / 2) / (1 + mu)
     z_ref = np.sqrt(mu * (1 + 0.75 * mu) / (4 * (1 + mu) * (1 + mu / 2)))

@@ -13,7 +13,7 @@ from scipy import stats
 from scipy.optimize import brentq
 
 from tmd.dampers.tuned_mass import TunedMassDamper
-from tmd.design import LoadCase, least_mass, tune
+from tmd.design import LoadedMode, least_mass, tune
 from tmd.probabilistic import (
     Distribution,
     Uncertainty,
@@ -34,7 +34,7 @@ pytestmark = pytest.mark.filterwarnings("ignore::tmd.performance.UpperEdgeWarnin
 
 @pytest.fixture(scope="module")
 def case():
-    return LoadCase(Mode(0.17, 1.9e7, 0.012), read_force_psd_csv(CSV), 600.0)
+    return LoadedMode(Mode(0.17, 1.9e7, 0.012), read_force_psd_csv(CSV), 600.0)
 
 
 @pytest.fixture(scope="module")

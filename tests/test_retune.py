@@ -10,7 +10,7 @@ from typer.testing import CliRunner
 
 from tmd.cli import app
 from tmd.dampers.tuned_mass import TunedMassDamper
-from tmd.design import LoadCase, evaluate_tmd, tune
+from tmd.design import LoadedMode, evaluate_tmd, tune
 from tmd.retune import BuiltDamper, measured_structure, retune_damper
 from tmd.spectra import TabulatedSpectrum
 from tmd.structure import Mode
@@ -24,7 +24,7 @@ def one_over_f_load(duration_s=3600.0):
     # where f_s lies (dimensional analysis, common practice), up to the fixed 10 Hz
     # cut-off of the background part.
     f = np.geomspace(1e-3, 10.0, 50)
-    return LoadCase(Mode(0.2, 2.0e7, 0.01), TabulatedSpectrum(f, 1e10 / f), duration_s)
+    return LoadedMode(Mode(0.2, 2.0e7, 0.01), TabulatedSpectrum(f, 1e10 / f), duration_s)
 
 
 @pytest.fixture(scope="module")
@@ -54,7 +54,7 @@ def test_retune_to_8_percent_lower_restores_the_nominal_peak(shifted):
 
 def test_retuned_ratios_equal_tune_on_the_measured_structure(shifted):
     load, _, built, _, r = shifted
-    measured = LoadCase(Mode(0.184, 2.0e7, 0.01), load.spectrum, load.duration_s)
+    measured = LoadedMode(Mode(0.184, 2.0e7, 0.01), load.spectrum, load.duration_s)
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
         t = tune(measured, built.mass_kg / 2.0e7)

@@ -11,7 +11,7 @@ import numpy as np
 import pytest
 
 from tmd.dampers.tuned_mass import TunedMassDamper
-from tmd.design import LoadCase, bare_response, evaluate_tmd, least_mass, tune
+from tmd.design import LoadedMode, bare_response, evaluate_tmd, least_mass, tune
 from tmd.robust import (
     AerodynamicDamping,
     assess_structure_factors,
@@ -36,7 +36,7 @@ pytestmark = pytest.mark.filterwarnings("ignore::tmd.performance.UpperEdgeWarnin
 
 @pytest.fixture(scope="module")
 def case():
-    return LoadCase(Mode(0.17, 1.9e7, 0.012), read_force_psd_csv(CSV), 600.0)
+    return LoadedMode(Mode(0.17, 1.9e7, 0.012), read_force_psd_csv(CSV), 600.0)
 
 
 @pytest.fixture(scope="module")
@@ -89,7 +89,7 @@ def test_detuned_point_keeps_the_damper_absolute(case, nominal):
                            nominal.damping_ratio)
     assert same.stiffness_n_per_m(mode_s) == pytest.approx(nominal.stiffness_n_per_m, rel=1e-14)
     assert same.damping_n_s_per_m(mode_s) == pytest.approx(nominal.damping_n_s_per_m, rel=1e-14)
-    ref = evaluate_tmd(LoadCase(mode_s, case.spectrum, case.duration_s), same)
+    ref = evaluate_tmd(LoadedMode(mode_s, case.spectrum, case.duration_s), same)
     # Same physical system through another path of the API: rounding only.
     assert points[0]["peak_acceleration_m_s2"] == pytest.approx(ref.peak_acceleration_m_s2,
                                                                 rel=1e-10)
@@ -111,7 +111,7 @@ def test_bare_sweep_with_aerodynamic_damping(case):
     for p in points:
         s = p["structure_frequency_factor"]
         zeta = 0.010 + 0.002 / s
-        ref = bare_response(LoadCase(Mode(s * m.frequency_hz, m.modal_mass_kg, zeta),
+        ref = bare_response(LoadedMode(Mode(s * m.frequency_hz, m.modal_mass_kg, zeta),
                                      case.spectrum, case.duration_s))
         assert p["peak_acceleration_m_s2"] == pytest.approx(ref.peak_acceleration_m_s2,
                                                             rel=1e-12)

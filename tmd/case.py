@@ -230,7 +230,7 @@ class Case:
         return None
 
 
-def load_case(path: str | Path) -> Case:
+def read_case(path: str | Path) -> Case:
     """Read and validate a case file.
 
     Raises

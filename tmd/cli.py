@@ -21,7 +21,7 @@ from rich.console import Console
 from rich.markup import escape
 from rich.table import Table
 
-from tmd.case import CaseError, load_case
+from tmd.case import CaseError, read_case
 from tmd.constants import STANDARD_GRAVITY
 from tmd.dampers.tuned_mass import TunedMassDamper
 from tmd.jobs import (
@@ -183,7 +183,7 @@ def _case_and_output(case_path: Path, out: Path | None):
     """
     folder = out if out is not None else Path("out") / case_path.stem
     target = _OPEN.get().enter_context(OutputFolder(folder, protected=(case_path,)))
-    c = load_case(case_path)
+    c = read_case(case_path)
     target.protect(c.input_files)
     return c, target
 
@@ -255,7 +255,7 @@ def evaluate(case: CaseArg,
              json_output: Annotated[bool, typer.Option(
                  "--json", help="Print {\"design\": {...}} as JSON only.")] = False):
     """Responses of one given TMD design (a proposed or as-built damper)."""
-    c = load_case(case)
+    c = read_case(case)
     damper = _design_from(c, None, (mass_ratio, frequency_ratio, damping_ratio),
                           (damper_mass_kg, damper_stiffness_n_per_m, damper_damping_n_s_per_m))
     result = evaluate_job(c, damper)
@@ -305,7 +305,7 @@ WIND_ROWS = (
 def wind(case: CaseArg,
          json_output: Annotated[bool, typer.Option("--json", help="Print JSON only.")] = False):
     """Wind at the reference height and the EN 1991-1-4 Annex B check, per return period."""
-    result = wind_job(load_case(case))
+    result = wind_job(read_case(case))
     if json_output:
         typer.echo(to_json(result), nl=False)
         return
@@ -365,7 +365,7 @@ def sweep(case: CaseArg,
           damper_damping_n_s_per_m: DampingNSPerM = None,
           json_output: Annotated[bool, typer.Option("--json", help="Print JSON only.")] = False):
     """Detuning sweeps of a given design (e.g. an as-built damper)."""
-    c = load_case(case)
+    c = read_case(case)
     damper = _design_from(c, design_from, (mass_ratio, frequency_ratio, damping_ratio),
                           (damper_mass_kg, damper_stiffness_n_per_m, damper_damping_n_s_per_m))
     result = sweep_job(c, damper)
@@ -462,7 +462,7 @@ def retune(case: CaseArg,
            json_output: Annotated[bool, typer.Option(
                "--json", help="Print {\"retuned\": {...}} as JSON only.")] = False):
     """Re-tune the built damper to the measured structure (its mass kept)."""
-    c = load_case(case)
+    c = read_case(case)
     d = _design_block(design_from)
     try:
         installed = _built_damper(d["mass_kg"], d["stiffness_n_per_m"], d["damping_n_s_per_m"])
@@ -578,7 +578,7 @@ def simulate(case: CaseArg,
     from tmd.jobs import simulation_job
     from tmd.simulation import SimulationInputError, SimulationSettings
 
-    c = load_case(case)
+    c = read_case(case)
     device = _simulated_device_from(c, design_from, option)
     if end_stop_travel_m is not None and not (0 < end_stop_travel_m < float("inf")):
         raise CaseError(f"--end-stop-travel-m = {end_stop_travel_m!r}: must be finite and > 0")

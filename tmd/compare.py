@@ -38,7 +38,7 @@ from tmd.dampers.liquid_column import ColumnSettings
 from tmd.dampers.pendulum import PendulumSettings
 from tmd.dampers.sloshing import TankSettings
 from tmd.defaults import FREQUENCY_BAND, MAX_MASS_RATIO
-from tmd.design import LoadCase, Sizing, TmdDesign, least_mass
+from tmd.design import LoadedMode, Sizing, TmdDesign, least_mass
 from tmd.performance import assess, effective_damping_ratio
 from tmd.registry import OPTION_NAMES
 from tmd.robust import band_maximum, peak_acceleration_band_max
@@ -64,7 +64,7 @@ class OptionSettings:
 
 @dataclass
 class _Job:
-    case: LoadCase
+    loaded: LoadedMode
     target: float
     max_mass_ratio: float
     max_stroke_m: float | None
@@ -74,12 +74,12 @@ class _Job:
 
     def tmd_sizing(self) -> Sizing:
         if self._tmd is None:
-            self._tmd = least_mass(self.case, self.target, max_mass_ratio=self.max_mass_ratio,
+            self._tmd = least_mass(self.loaded, self.target, max_mass_ratio=self.max_mass_ratio,
                                    max_stroke_m=self.max_stroke_m)
         return self._tmd
 
 
-def compare_options(case: LoadCase, target_peak_m_s2: float, *, enabled=None,
+def compare_options(loaded: LoadedMode, target_peak_m_s2: float, *, enabled=None,
                     max_mass_ratio: float = MAX_MASS_RATIO, max_stroke_m: float | None = None,
                     frequency_band: float = FREQUENCY_BAND,
                     settings: OptionSettings | None = None) -> list[dict]:
@@ -87,7 +87,7 @@ def compare_options(case: LoadCase, target_peak_m_s2: float, *, enabled=None,
 
     Parameters
     ----------
-    case : LoadCase
+    loaded : LoadedMode
     target_peak_m_s2 : float
         Peak acceleration target at the evaluation height [m/s^2].
     enabled : sequence of str, optional
@@ -125,7 +125,7 @@ def compare_options(case: LoadCase, target_peak_m_s2: float, *, enabled=None,
     unknown = [n for n in names if n not in OPTIONS]
     if unknown:
         raise ValueError(f"unknown option(s) {unknown}; known: {list(OPTIONS)}")
-    job = _Job(case, target_peak_m_s2, max_mass_ratio, max_stroke_m, frequency_band,
+    job = _Job(loaded, target_peak_m_s2, max_mass_ratio, max_stroke_m, frequency_band,
                settings or OptionSettings())
     return [{"option": name} | OPTIONS[name](job) for name in names]
 
@@ -150,7 +150,7 @@ def _pendulum_row(job: _Job) -> dict:
 def _tmd_like(job: _Job, sizing: Sizing, design: TmdDesign | None) -> dict:
     if design is None:
         return _empty_row(job, sizing.message) | {"dampers": []}
-    band = peak_acceleration_band_max(job.case, design.damper, job.band).peak_acceleration_m_s2
+    band = peak_acceleration_band_max(job.loaded, design.damper, job.band).peak_acceleration_m_s2
     return {
         "mass_kg": design.mass_kg, "mass_ratio": design.mass_ratio,
         "peak_acceleration_m_s2": design.peak_acceleration_m_s2,
@@ -164,16 +164,16 @@ def _tmd_like(job: _Job, sizing: Sizing, design: TmdDesign | None) -> dict:
 
 
 def _bank_row(job: _Job) -> dict:
-    bank = size_tmd_bank(job.case, job.target, max_mass_ratio=job.max_mass_ratio,
+    bank = size_tmd_bank(job.loaded, job.target, max_mass_ratio=job.max_mass_ratio,
                          max_stroke_m=job.max_stroke_m, settings=job.settings.bank)
     absorbers = bank.absorbers
-    a = job.case.assess(absorbers)
-    m = job.case.mode
+    a = job.loaded.assess(absorbers)
+    m = job.loaded.mode
 
     def peaks(s):
         return assess(s * m.frequency_hz, m.modal_mass_kg, m.damping_ratio, absorbers,
-                      job.case.spectrum, job.case.duration_s,
-                      shape_factor=job.case.shape_factor).peak_acceleration_m_s2
+                      job.loaded.spectrum, job.loaded.duration_s,
+                      shape_factor=job.loaded.shape_factor).peak_acceleration_m_s2
 
     stroke = float(np.max(a.peak_stroke_m)) if bank.mass_kg.size else 0.0
     return _measured(job, a, bank.mass_ratio, peaks) | {
@@ -183,13 +183,13 @@ def _bank_row(job: _Job) -> dict:
 
 
 def _column_row(job: _Job) -> dict:
-    d = size_liquid_column(job.case, job.target, max_mass_ratio=job.max_mass_ratio,
+    d = size_liquid_column(job.loaded, job.target, max_mass_ratio=job.max_mass_ratio,
                            settings=job.settings.column)
-    a = job.case.assess(d.absorbers())
+    a = job.loaded.assess(d.absorbers())
 
     def peaks(s):
         return velocity_proportional_fixed_point(
-            job.case, d.liquid_mass_kg, d.frequency_hz, d.length_ratio, d.damping_gain_s_per_m,
+            job.loaded, d.liquid_mass_kg, d.frequency_hz, d.length_ratio, d.damping_gain_s_per_m,
             frequency_scale=s)[1].peak_acceleration_m_s2
 
     return _measured(job, a, d.mass_ratio, peaks) | {
@@ -208,13 +208,13 @@ def _column_row(job: _Job) -> dict:
 
 
 def _tank_row(job: _Job) -> dict:
-    d = size_sloshing_tanks(job.case, job.target, max_mass_ratio=job.max_mass_ratio,
+    d = size_sloshing_tanks(job.loaded, job.target, max_mass_ratio=job.max_mass_ratio,
                             settings=job.settings.tank)
-    a = job.case.assess(d.absorbers())
+    a = job.loaded.assess(d.absorbers())
 
     def peaks(s):
         return velocity_proportional_fixed_point(
-            job.case, d.water_mass_kg, d.frequency_hz, d.coupling, d.damping_gain_s_per_m,
+            job.loaded, d.water_mass_kg, d.frequency_hz, d.coupling, d.damping_gain_s_per_m,
             damping_floor=d.intrinsic_damping_ratio, frequency_scale=s)[1].peak_acceleration_m_s2
 
     dims = {"tank_length_m": d.tank_length_m, "water_depth_m": d.water_depth_m,
@@ -233,10 +233,10 @@ def _tank_row(job: _Job) -> dict:
 
 
 def _viscous_row(job: _Job) -> dict:
-    d = size_added_damping(job.case, job.target, settings=job.settings.viscous)
+    d = size_added_damping(job.loaded, job.target, settings=job.settings.viscous)
 
     def peaks(s):
-        return peak_acceleration_with_dashpot(job.case, d.added_damping_ratio, s)
+        return peak_acceleration_with_dashpot(job.loaded, d.added_damping_ratio, s)
 
     return {
         "mass_kg": None, "mass_ratio": None, "peak_acceleration_m_s2": d.peak_acceleration_m_s2,
@@ -267,10 +267,10 @@ if tuple(OPTIONS) != OPTION_NAMES:  # the registry the case file validates again
 
 def _measured(job: _Job, a, mass_ratio, peaks) -> dict:
     """The common keys of a row from an engine assessment of the design."""
-    m = job.case.mode
+    m = job.loaded.mode
     sigma = float(np.asarray(a.sigma_acceleration_m_s2).ravel()[0])
     zeta_eff = float(effective_damping_ratio(m.frequency_hz, m.modal_mass_kg,
-                                             sigma / job.case.shape_factor, job.case.spectrum))
+                                             sigma / job.loaded.shape_factor, job.loaded.spectrum))
     return {
         "mass_kg": mass_ratio * m.modal_mass_kg, "mass_ratio": mass_ratio,
         "peak_acceleration_m_s2": float(np.asarray(a.peak_acceleration_m_s2).ravel()[0]),
@@ -282,10 +282,10 @@ def _measured(job: _Job, a, mass_ratio, peaks) -> dict:
 
 
 def _empty_row(job: _Job, message: str) -> dict:
-    bare = peak_acceleration_band_max(job.case, None, 0.0).peak_acceleration_m_s2
+    bare = peak_acceleration_band_max(job.loaded, None, 0.0).peak_acceleration_m_s2
     return {"mass_kg": 0.0, "mass_ratio": 0.0, "peak_acceleration_m_s2": float(bare),
             "peak_stroke_m": 0.0, "peak_damper_force_n": 0.0,
-            "effective_damping_ratio": job.case.mode.damping_ratio,
+            "effective_damping_ratio": job.loaded.mode.damping_ratio,
             "peak_acceleration_band_max_m_s2": float(peak_acceleration_band_max(
-                job.case, None, job.band).peak_acceleration_m_s2),
+                job.loaded, None, job.band).peak_acceleration_m_s2),
             "meets_target": True, "message": message, "dimensions": {}}

@@ -41,8 +41,11 @@ class DesignError(RuntimeError):
 
 
 @dataclass(frozen=True)
-class LoadCase:
-    """One mode under one load, with the reporting conventions.
+class LoadedMode:
+    """One mode under one load, with the reporting conventions (a "loaded mode").
+
+    Not to be confused with :class:`tmd.case.Case`, the validated case file:
+    :func:`tmd.jobs.loaded_mode_of` gives a case's loaded mode.
 
     Parameters
     ----------
@@ -92,22 +95,22 @@ class Sizing:
     message: str
 
 
-def bare_response(case: LoadCase) -> BareResponse:
+def bare_response(loaded: LoadedMode) -> BareResponse:
     """Responses of the building without a damper."""
-    a = case.assess(Absorbers.none())
+    a = loaded.assess(Absorbers.none())
     return BareResponse(float(a.sigma_acceleration_m_s2), float(a.peak_acceleration_m_s2),
                         float(a.peak_factor), float(a.upcrossing_hz),
                         float(a.sigma_displacement_m))
 
 
-def evaluate_tmd(case: LoadCase, damper: TunedMassDamper,
+def evaluate_tmd(loaded: LoadedMode, damper: TunedMassDamper,
                  target_peak_m_s2: float | None = None) -> TmdDesign:
     """Every response of one given TMD (e.g. a proposed or as-built damper)."""
-    m = case.mode
-    a = case.assess(damper.absorbers(m), warn=True)
-    modal_sigma = float(a.sigma_acceleration_m_s2) / case.shape_factor
+    m = loaded.mode
+    a = loaded.assess(damper.absorbers(m), warn=True)
+    modal_sigma = float(a.sigma_acceleration_m_s2) / loaded.shape_factor
     zeta_eff = float(effective_damping_ratio(m.frequency_hz, m.modal_mass_kg, modal_sigma,
-                                             case.spectrum))
+                                             loaded.spectrum))
     peak = float(a.peak_acceleration_m_s2)
     return TmdDesign(
         mass_ratio=damper.mass_ratio, mass_kg=damper.mass_kg(m),
@@ -138,12 +141,12 @@ def central_difference_gradient(values):
 class _TuningProblem:
     """Objective and stroke constraint with batched central-difference gradients."""
 
-    def __init__(self, case, mass_ratio, objective, statistic, max_stroke_m):
+    def __init__(self, loaded, mass_ratio, objective, statistic, max_stroke_m):
         if objective not in OBJECTIVES:
             raise ValueError(f"objective must be one of {OBJECTIVES}, got {objective!r}")
         if statistic not in STATISTICS:
             raise ValueError(f"statistic must be one of {STATISTICS}, got {statistic!r}")
-        self.case, self.mu = case, mass_ratio
+        self.loaded, self.mu = loaded, mass_ratio
         self.objective, self.statistic, self.max_stroke = objective, statistic, max_stroke_m
         self._x = None
 
@@ -158,8 +161,8 @@ class _TuningProblem:
         if self._x is not None and np.array_equal(x, self._x):
             return
         pts = central_difference_points(x)
-        m = self.case.mode
-        a = self.case.assess(single_tmd(m.frequency_hz, m.modal_mass_kg, self.mu, pts[:, 0],
+        m = self.loaded.mode
+        a = self.loaded.assess(single_tmd(m.frequency_hz, m.modal_mass_kg, self.mu, pts[:, 0],
                                         np.exp(pts[:, 1])))
         value = np.log(self._measure(a))
         stroke = a.peak_stroke_m[:, 0]
@@ -185,13 +188,13 @@ class _TuningProblem:
         return -self.stroke_grad[None, :] / self.max_stroke
 
 
-def tune(case: LoadCase, mass_ratio: float, *, objective: str = "acceleration",
+def tune(loaded: LoadedMode, mass_ratio: float, *, objective: str = "acceleration",
          statistic: str = "peak", max_stroke_m: float | None = None) -> Tuning:
     """Best frequency and damping ratio of a TMD of given mass ratio.
 
     Parameters
     ----------
-    case : LoadCase
+    loaded : LoadedMode
     mass_ratio : float
         mu = m_d / M* [-].
     objective : {"acceleration", "displacement"}
@@ -210,7 +213,7 @@ def tune(case: LoadCase, mass_ratio: float, *, objective: str = "acceleration",
     DesignError
         If SLSQP fails from every start.
     """
-    problem = _TuningProblem(case, mass_ratio, objective, statistic, max_stroke_m)
+    problem = _TuningProblem(loaded, mass_ratio, objective, statistic, max_stroke_m)
     ratio0, zeta0 = warburton_white_force_tuning(mass_ratio)
     zeta0 = float(np.clip(zeta0, *DAMPING_RATIO_BOUNDS))
     bounds = [FREQUENCY_RATIO_BOUNDS, tuple(np.log(DAMPING_RATIO_BOUNDS))]
@@ -241,13 +244,13 @@ def tune(case: LoadCase, mass_ratio: float, *, objective: str = "acceleration",
                   bool(limited))
 
 
-def least_mass(case: LoadCase, target_peak_m_s2: float, *, max_mass_ratio: float,
+def least_mass(loaded: LoadedMode, target_peak_m_s2: float, *, max_mass_ratio: float,
                max_stroke_m: float | None = None, min_mass_ratio: float = 1e-4) -> Sizing:
     """Smallest mass ratio whose best tuning meets the peak-acceleration target.
 
     Parameters
     ----------
-    case : LoadCase
+    loaded : LoadedMode
     target_peak_m_s2 : float
         Peak acceleration target at the evaluation height [m/s^2].
     max_mass_ratio : float
@@ -260,19 +263,19 @@ def least_mass(case: LoadCase, target_peak_m_s2: float, *, max_mass_ratio: float
     Sizing
         At a "target"-governed answer |peak / target - 1| < 1e-4.
     """
-    bare = bare_response(case)
+    bare = bare_response(loaded)
     if bare.peak_acceleration_m_s2 <= target_peak_m_s2:
         return Sizing(None, True, "bare", (
             f"the bare building's peak acceleration {bare.peak_acceleration_m_s2:.4g} m/s^2 "
             f"already meets the target {target_peak_m_s2:.4g} m/s^2: no damper is needed"))
 
     def best(mu):
-        return tune(case, mu, max_stroke_m=max_stroke_m)
+        return tune(loaded, mu, max_stroke_m=max_stroke_m)
 
     top = best(max_mass_ratio)
     if top.value > target_peak_m_s2:
         limit = "stroke" if top.stroke_limited or not np.isfinite(top.value) else "mass"
-        design = _design_at(case, max_mass_ratio, top, target_peak_m_s2)
+        design = _design_at(loaded, max_mass_ratio, top, target_peak_m_s2)
         reason = (f"the peak stroke limit of {max_stroke_m:g} m" if limit == "stroke"
                   else f"the largest mass ratio allowed, {max_mass_ratio:g}")
         return Sizing(design, False, limit, (
@@ -283,7 +286,7 @@ def least_mass(case: LoadCase, target_peak_m_s2: float, *, max_mass_ratio: float
     mu = smallest_meeting_mass_ratio(lambda x: best(x).value, target_peak_m_s2,
                                      min_mass_ratio, max_mass_ratio)
     tuning = best(mu)
-    design = _design_at(case, mu, tuning, target_peak_m_s2)
+    design = _design_at(loaded, mu, tuning, target_peak_m_s2)
     if abs(tuning.value / target_peak_m_s2 - 1.0) < 1e-4:
         return Sizing(design, True, "target", (
             f"least mass ratio {mu:.5g} meets the target {target_peak_m_s2:.4g} m/s^2"
@@ -322,6 +325,6 @@ def smallest_meeting_mass_ratio(best_value, target, min_mass_ratio, max_mass_rat
     return brentq(gap, min_mass_ratio, max_mass_ratio, xtol=1e-12, rtol=1e-10, maxiter=200)
 
 
-def _design_at(case, mu, tuning: Tuning, target):
-    return evaluate_tmd(case, TunedMassDamper(mu, tuning.frequency_ratio, tuning.damping_ratio),
+def _design_at(loaded, mu, tuning: Tuning, target):
+    return evaluate_tmd(loaded, TunedMassDamper(mu, tuning.frequency_ratio, tuning.damping_ratio),
                         target)

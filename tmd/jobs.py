@@ -15,28 +15,28 @@ from tmd import __version__
 from tmd.case import Case, CaseError, RobustnessTable, WindLoad
 from tmd.dampers.tuned_mass import TunedMassDamper
 from tmd.defaults import FREQUENCY_BAND
-from tmd.design import LoadCase, Sizing, TmdDesign, bare_response, evaluate_tmd, least_mass, tune
+from tmd.design import LoadedMode, Sizing, TmdDesign, bare_response, evaluate_tmd, least_mass, tune
 from tmd.schema import CAUTIONS, SCHEMA_VERSION, design_block
 
 
-def load_case_of(case: Case, wind_load: WindLoad | None = None) -> LoadCase:
-    """The library's load case for the design load (or one return period's wind load).
+def loaded_mode_of(case: Case, wind_load: WindLoad | None = None) -> LoadedMode:
+    """The case's mode under its design load (or one return period's wind load).
 
     The mode's damping includes the aerodynamic damping of that load when
     the case asks for it; accelerations are at the evaluation height.
     """
     load = wind_load if wind_load is not None else case.design_wind_load
     if load is None:
-        return LoadCase(case.mode, case.spectrum, case.duration_s, case.shape_factor)
+        return LoadedMode(case.mode, case.spectrum, case.duration_s, case.shape_factor)
     mode = case.mode.with_damping(case.mode.damping_ratio + load.aerodynamic_damping_ratio)
-    return LoadCase(mode, load.spectrum, case.duration_s, case.shape_factor)
+    return LoadedMode(mode, load.spectrum, case.duration_s, case.shape_factor)
 
 
 def by_return_period(case: Case, design: TmdDesign | None) -> list[dict]:
     """Bare and damped responses for every return period of a wind case."""
     rows = []
     for wind_load in case.wind_loads:
-        load = load_case_of(case, wind_load)
+        load = loaded_mode_of(case, wind_load)
         row = {"return_period_years": wind_load.return_period_years,
                "mean_speed_m_s": wind_load.mean_speed_m_s,
                "aerodynamic_damping_ratio": wind_load.aerodynamic_damping_ratio,
@@ -60,7 +60,7 @@ def _header(case: Case) -> dict:
     }
 
 
-def _bare_block(load: LoadCase) -> dict:
+def _bare_block(load: LoadedMode) -> dict:
     return asdict(bare_response(load))
 
 
@@ -73,7 +73,7 @@ def _target_block(case: Case) -> dict:
 
 def size_damper(case: Case) -> Sizing:
     """The TMD the case asks for: tuned at a fixed mass ratio, or the least mass."""
-    load = load_case_of(case)
+    load = loaded_mode_of(case)
     settings = case.damper
     if settings.mass_ratio is None:
         return least_mass(load, case.target_peak_m_s2, max_mass_ratio=settings.max_mass_ratio,
@@ -104,7 +104,7 @@ def design_job(case: Case) -> dict:
     """Bare response, sized TMD and the numbers of its specification."""
 
     def build():
-        load = load_case_of(case)
+        load = loaded_mode_of(case)
         sizing = size_damper(case)
         result = _header(case) | {
             "target": _target_block(case),
@@ -144,7 +144,7 @@ def robustness_block(case: Case, damper: TunedMassDamper) -> dict:
         uncertainty = Uncertainty(p.frequency_cov, p.damping_cov, Distribution(p.distribution),
                                   p.exceedance_probability, p.seed, p.sample_count)
     study = robustness_study(
-        load_case_of(case), damper, case.target_peak_m_s2, frequency_band=r.frequency_band,
+        loaded_mode_of(case), damper, case.target_peak_m_s2, frequency_band=r.frequency_band,
         sweep_range=r.sweep_range, robust_design=r.robust_design,
         max_mass_ratio=case.damper.max_mass_ratio, max_stroke_m=case.damper.max_stroke_m,
         structure_damping_ratio=_structure_damping(case), probabilistic=uncertainty)
@@ -159,7 +159,7 @@ def sweep_job(case: Case, damper: TunedMassDamper) -> dict:
     r = case.tables.robustness or RobustnessTable()
 
     def build():
-        load = load_case_of(case)
+        load = loaded_mode_of(case)
         return _header(case) | {
             "target": _target_block(case),
             "design": design_block(evaluate_tmd(load, damper, case.target_peak_m_s2)),
@@ -180,7 +180,7 @@ def compare_job(case: Case) -> dict:
         band = case.tables.robustness.frequency_band if case.tables.robustness else FREQUENCY_BAND
 
     def build():
-        load = load_case_of(case)
+        load = loaded_mode_of(case)
         return _header(case) | {
             "target": _target_block(case),
             "bare": _bare_block(load),
@@ -198,7 +198,7 @@ def evaluate_job(case: Case, damper: TunedMassDamper) -> dict:
     """Responses of one given TMD design on the case."""
 
     def build():
-        load = load_case_of(case)
+        load = loaded_mode_of(case)
         design = evaluate_tmd(load, damper, case.target_peak_m_s2)
         result = _header(case) | {
             "target": _target_block(case),
@@ -232,7 +232,7 @@ def wind_job(case: Case) -> dict:
         aero = float(aerodynamic_damping_ratio(case.site, case.building, case.mode.modal_mass_kg,
                                                case.mode.frequency_hz, period))
         mode = case.mode.with_damping(case.mode.damping_ratio + aero)
-        spectral = bare_response(LoadCase(mode, wind_load.spectrum, case.duration_s,
+        spectral = bare_response(LoadedMode(mode, wind_load.spectrum, case.duration_s,
                                           case.shape_factor))
         s_u = velocity_spectrum(case.site, z_s, case.mode.frequency_hz, period,
                                 case.wind_settings["spectrum"])
@@ -283,7 +283,7 @@ def retune_job(case: Case, installed, frequency_hz: float, *, damping_ratio: flo
                                    damping_ratio=damping_ratio, modal_mass_kg=modal_mass_kg)
 
     def build():
-        r = retune_damper(load_case_of(case), structure, installed,
+        r = retune_damper(loaded_mode_of(case), structure, installed,
                           adjustment_band=adjustment_band, objective=case.damper.objective,
                           max_stroke_m=case.damper.max_stroke_m,
                           target_peak_m_s2=case.target_peak_m_s2)
@@ -330,7 +330,7 @@ def simulation_job(case: Case, device: dict, settings, *, end_stop_travel_m: flo
         loads = [(w.return_period_years, w) for w in case.wind_loads] or [(None, None)]
         rows = []
         for years, wind_load in loads:
-            load = load_case_of(case, wind_load)
+            load = loaded_mode_of(case, wind_load)
             m = load.mode
             absorbers, nonlinear, linear_zeta, freeboard = _simulated_device(
                 load, device, end_stop_travel_m)
@@ -363,7 +363,7 @@ def simulation_job(case: Case, device: dict, settings, *, end_stop_travel_m: flo
     return result, holder
 
 
-def _simulated_device(load: LoadCase, device: dict, end_stop_travel_m):
+def _simulated_device(load: LoadedMode, device: dict, end_stop_travel_m):
     """Absorbers, nonlinear elements, integrated damping and freeboard of a device."""
     import numpy as np
 

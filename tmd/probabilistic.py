@@ -51,7 +51,7 @@ from scipy.special import ndtr
 from tmd.dampers.absorber import Absorbers
 from tmd.dampers.tuned_mass import TunedMassDamper
 from tmd.defaults import MAX_MASS_RATIO
-from tmd.design import LoadCase, TmdDesign, evaluate_tmd, tune
+from tmd.design import LoadedMode, TmdDesign, evaluate_tmd, tune
 from tmd.performance import assess
 from tmd.robust import StructureDamping, structure_damping_ratios
 from tmd.schema import design_block
@@ -160,7 +160,7 @@ class ProbabilisticSizing:
 
 # --- one call per job -------------------------------------------------------
 
-def probabilistic_study(case: LoadCase, nominal: TunedMassDamper, target_peak_m_s2: float,
+def probabilistic_study(loaded: LoadedMode, nominal: TunedMassDamper, target_peak_m_s2: float,
                         uncertainty: Uncertainty, *, robust: TunedMassDamper | None = None,
                         max_mass_ratio: float = MAX_MASS_RATIO, max_stroke_m: float | None = None,
                         structure_damping_ratio: StructureDamping | None = None) -> dict:
@@ -168,7 +168,7 @@ def probabilistic_study(case: LoadCase, nominal: TunedMassDamper, target_peak_m_
 
     Parameters
     ----------
-    case : LoadCase
+    loaded : LoadedMode
     nominal, robust : TunedMassDamper
         The nominal design and (optionally) the band-robust one.
     target_peak_m_s2 : float
@@ -194,17 +194,17 @@ def probabilistic_study(case: LoadCase, nominal: TunedMassDamper, target_peak_m_
     def block(damper):
         if damper is None:
             return None
-        sampled = sampled_exceedance_probability(case, damper, target_peak_m_s2, uncertainty,
+        sampled = sampled_exceedance_probability(loaded, damper, target_peak_m_s2, uncertainty,
                                                  structure_damping_ratio=structure_damping_ratio)
         return {"exceedance_probability": exceedance_probability(
-                    case, damper, target_peak_m_s2, uncertainty,
+                    loaded, damper, target_peak_m_s2, uncertainty,
                     structure_damping_ratio=structure_damping_ratio),
                 "exceedance_probability_sampled": sampled.probability,
                 "sampling_standard_error": sampled.standard_error}
 
     sized = None
     if uncertainty.exceedance_probability is not None:
-        s = least_mass_for_probability(case, target_peak_m_s2, uncertainty,
+        s = least_mass_for_probability(loaded, target_peak_m_s2, uncertainty,
                                        max_mass_ratio=max_mass_ratio, max_stroke_m=max_stroke_m,
                                        structure_damping_ratio=structure_damping_ratio)
         sized = design_block(s.design) | {
@@ -215,14 +215,14 @@ def probabilistic_study(case: LoadCase, nominal: TunedMassDamper, target_peak_m_
             "least_mass_design": sized}
 
 
-def exceedance_probability(case: LoadCase, damper: TunedMassDamper | None,
+def exceedance_probability(loaded: LoadedMode, damper: TunedMassDamper | None,
                            target_peak_m_s2: float, uncertainty: Uncertainty, *,
                            structure_damping_ratio: StructureDamping | None = None) -> float:
     """P[a_peak > target] over the random structure frequency (and damping), by quadrature.
 
     Parameters
     ----------
-    case : LoadCase
+    loaded : LoadedMode
     damper : TunedMassDamper or None
         The design (absolute m_d, k_d, c_d kept); None for the bare building.
     target_peak_m_s2 : float
@@ -247,7 +247,7 @@ def exceedance_probability(case: LoadCase, damper: TunedMassDamper | None,
     ~1e-7 (lognormal) to ~1e-5 against 32 nodes per panel.
     """
     def excess(u_s, u_d):
-        return _peak_excess(case, damper, target_peak_m_s2, uncertainty, u_s, u_d,
+        return _peak_excess(loaded, damper, target_peak_m_s2, uncertainty, u_s, u_d,
                             structure_damping_ratio)
 
     def conditional(u_d):
@@ -262,7 +262,7 @@ def exceedance_probability(case: LoadCase, damper: TunedMassDamper | None,
                               uncertainty.distribution.kinks(uncertainty.damping_cov))
 
 
-def sampled_exceedance_probability(case: LoadCase, damper: TunedMassDamper | None,
+def sampled_exceedance_probability(loaded: LoadedMode, damper: TunedMassDamper | None,
                                    target_peak_m_s2: float, uncertainty: Uncertainty, *,
                                    structure_damping_ratio: StructureDamping | None = None
                                    ) -> SampledProbability:
@@ -282,14 +282,14 @@ def sampled_exceedance_probability(case: LoadCase, damper: TunedMassDamper | Non
     hits = 0
     for start in range(0, n, SAMPLE_CHUNK):
         chunk = slice(start, start + SAMPLE_CHUNK)
-        hits += int(np.count_nonzero(_peak_excess(case, damper, target_peak_m_s2, uncertainty,
+        hits += int(np.count_nonzero(_peak_excess(loaded, damper, target_peak_m_s2, uncertainty,
                                                   u[chunk, 0], u_d[chunk],
                                                   structure_damping_ratio) > 0))
     p = hits / n
     return SampledProbability(p, math.sqrt(p * (1.0 - p) / n), n)
 
 
-def least_mass_for_probability(case: LoadCase, target_peak_m_s2: float,
+def least_mass_for_probability(loaded: LoadedMode, target_peak_m_s2: float,
                                uncertainty: Uncertainty, *, max_mass_ratio: float,
                                max_stroke_m: float | None = None, min_mass_ratio: float = 1e-4,
                                structure_damping_ratio: StructureDamping | None = None
@@ -298,7 +298,7 @@ def least_mass_for_probability(case: LoadCase, target_peak_m_s2: float,
 
     Parameters
     ----------
-    case : LoadCase
+    loaded : LoadedMode
     target_peak_m_s2 : float
         Peak acceleration target [m/s^2].
     uncertainty : Uncertainty
@@ -329,11 +329,11 @@ def least_mass_for_probability(case: LoadCase, target_peak_m_s2: float,
         raise ValueError("the uncertainty gives no acceptable exceedance_probability")
 
     def probability(damper):
-        return exceedance_probability(case, damper, target_peak_m_s2, uncertainty,
+        return exceedance_probability(loaded, damper, target_peak_m_s2, uncertainty,
                                       structure_damping_ratio=structure_damping_ratio)
 
     def damper_at(mu):
-        t = tune(case, mu, max_stroke_m=max_stroke_m)
+        t = tune(loaded, mu, max_stroke_m=max_stroke_m)
         return TunedMassDamper(mu, t.frequency_ratio, t.damping_ratio)
 
     bare = probability(None)
@@ -344,7 +344,7 @@ def least_mass_for_probability(case: LoadCase, target_peak_m_s2: float,
     top = damper_at(max_mass_ratio)
     p_top = probability(top)
     if p_top > accept:
-        return ProbabilisticSizing(evaluate_tmd(case, top, target_peak_m_s2), p_top, False,
+        return ProbabilisticSizing(evaluate_tmd(loaded, top, target_peak_m_s2), p_top, False,
                                    "mass", (
             f"even the largest mass ratio allowed, {max_mass_ratio:g}, exceeds the target with "
             f"probability {p_top:.3g} > {accept:.3g}"))
@@ -352,7 +352,7 @@ def least_mass_for_probability(case: LoadCase, target_peak_m_s2: float,
                 xtol=1e-10, rtol=1e-8, maxiter=100)
     damper = damper_at(mu)
     p = probability(damper)
-    return ProbabilisticSizing(evaluate_tmd(case, damper, target_peak_m_s2), p, True,
+    return ProbabilisticSizing(evaluate_tmd(loaded, damper, target_peak_m_s2), p, True,
                                "probability", (
         f"least mass ratio {mu:.5g} (nominal-optimal tuning) exceeds the target with "
         f"probability {p:.3g}, the acceptable {accept:.3g}"))
@@ -425,16 +425,16 @@ def _conditional_probability(excess, outer, points):
     return conditional
 
 
-def _peak_excess(case, damper, target, uncertainty, u_s, u_d, damping):
+def _peak_excess(loaded, damper, target, uncertainty, u_s, u_d, damping):
     """a_peak / target - 1 at standard-normal (u_s, u_d), broadcast; one engine call."""
     u_s, u_d = np.broadcast_arrays(np.asarray(u_s, float), np.asarray(u_d, float))
     dist = uncertainty.distribution
     s = dist.factor(u_s, uncertainty.frequency_cov)
-    zeta = structure_damping_ratios(case, s, damping)
+    zeta = structure_damping_ratios(loaded, s, damping)
     if uncertainty.damping_cov > 0:
         zeta = zeta * dist.factor(u_d, uncertainty.damping_cov)
-    m = case.mode
+    m = loaded.mode
     absorbers = Absorbers.none(s.shape) if damper is None else damper.absorbers(m)
-    a = assess(s * m.frequency_hz, m.modal_mass_kg, zeta, absorbers, case.spectrum,
-               case.duration_s, shape_factor=case.shape_factor)
+    a = assess(s * m.frequency_hz, m.modal_mass_kg, zeta, absorbers, loaded.spectrum,
+               loaded.duration_s, shape_factor=loaded.shape_factor)
     return a.peak_acceleration_m_s2 / target - 1.0

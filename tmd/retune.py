@@ -29,7 +29,7 @@ import math
 from dataclasses import dataclass, replace
 
 from tmd.dampers.tuned_mass import TunedMassDamper
-from tmd.design import LoadCase, TmdDesign, evaluate_tmd, tune
+from tmd.design import LoadedMode, TmdDesign, evaluate_tmd, tune
 from tmd.errors import InputError
 from tmd.structure import Mode
 
@@ -275,7 +275,7 @@ class Retuning:
         }
 
 
-def retune_damper(load: LoadCase, structure: MeasuredStructure, installed: BuiltDamper, *,
+def retune_damper(load: LoadedMode, structure: MeasuredStructure, installed: BuiltDamper, *,
                   adjustment_band: float, objective: str = "acceleration",
                   max_stroke_m: float | None = None,
                   target_peak_m_s2: float | None = None) -> Retuning:
@@ -283,7 +283,7 @@ def retune_damper(load: LoadCase, structure: MeasuredStructure, installed: Built
 
     Parameters
     ----------
-    load : LoadCase
+    load : LoadedMode
         The case's design load (its mode is replaced by the measured one).
     structure : MeasuredStructure
     installed : BuiltDamper

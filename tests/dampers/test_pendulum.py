@@ -4,7 +4,7 @@ import math
 
 import pytest
 
-from tmd.case import load_case
+from tmd.case import read_case
 from tmd.dampers.pendulum import (
     PendulumSettings,
     multi_stage_frequency_hz,
@@ -12,7 +12,7 @@ from tmd.dampers.pendulum import (
     swing_angle_rad,
 )
 from tmd.design import least_mass
-from tmd.jobs import load_case_of
+from tmd.jobs import loaded_mode_of
 from tmd.sizing.pendulum import pendulum_design
 
 
@@ -39,7 +39,7 @@ def test_swing_angle():
 
 
 def test_design_geometry_on_the_demo_case():
-    load = load_case_of(load_case("cases/harbourline_residences.toml"))
+    load = loaded_mode_of(read_case("cases/harbourline_residences.toml"))
     tmd = least_mass(load, 0.1, max_mass_ratio=0.05, max_stroke_m=1.0).design
     p = pendulum_design(tmd, PendulumSettings(stages=3))
     assert p.length_m == pytest.approx(9.80665 / (2 * math.pi * tmd.frequency_hz) ** 2,

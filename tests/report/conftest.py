@@ -8,7 +8,7 @@ import pytest
 
 from tests.consistency import assert_consistent_results
 from tests.report.synthetic import DEMO_CASE, full_results
-from tmd.case import load_case
+from tmd.case import read_case
 from tmd.jobs import compare_job, design_job
 from tmd.outputs import to_json
 from tmd.performance import UpperEdgeWarning
@@ -25,7 +25,7 @@ def as_written(results: dict) -> dict:
 
 @pytest.fixture(scope="session", params=CASES, ids=[c.stem for c in CASES])
 def case_report(request):
-    case = load_case(request.param)
+    case = read_case(request.param)
     results = design_job(case)
     assert_consistent_results(as_written(results))
     return case, as_written(results), render_report(case, results, dpi=TEST_DPI)
@@ -33,7 +33,7 @@ def case_report(request):
 
 @pytest.fixture(scope="session")
 def full_report():
-    case = load_case(DEMO_CASE)
+    case = read_case(DEMO_CASE)
     with warnings.catch_warnings():
         # the demo spectrum's upper-edge note is already in results["warnings"]
         warnings.simplefilter("ignore", UpperEdgeWarning)
@@ -44,7 +44,7 @@ def full_report():
 @pytest.fixture(scope="session")
 def compare_report():
     """The comparison of every option on the force-spectrum demo, with its report."""
-    case = load_case(DEMO_CASE)
+    case = read_case(DEMO_CASE)
     with warnings.catch_warnings():
         # the demo spectrum's upper-edge note is already in results["warnings"]
         warnings.simplefilter("ignore", UpperEdgeWarning)

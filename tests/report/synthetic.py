@@ -18,8 +18,8 @@ import numpy as np
 
 from tmd.dampers.absorber import Absorbers
 from tmd.dampers.tuned_mass import TunedMassDamper
-from tmd.design import LoadCase, bare_response, evaluate_tmd, tune
-from tmd.jobs import design_block, design_job, load_case_of
+from tmd.design import LoadedMode, bare_response, evaluate_tmd, tune
+from tmd.jobs import design_block, design_job, loaded_mode_of
 from tmd.performance import assess, effective_damping_ratio
 from tmd.spectra import TabulatedSpectrum
 
@@ -32,14 +32,14 @@ BAND = 0.15
 FACTORS = np.round(np.linspace(0.8, 1.2, 17), 6)
 
 
-def scaled(load: LoadCase, factor: float) -> LoadCase:
+def scaled(load: LoadedMode, factor: float) -> LoadedMode:
     spectrum = load.spectrum
-    return LoadCase(load.mode, TabulatedSpectrum(spectrum.frequency_hz,
+    return LoadedMode(load.mode, TabulatedSpectrum(spectrum.frequency_hz,
                                                  spectrum.psd_n2_per_hz * factor),
                     load.duration_s, load.shape_factor)
 
 
-def sweep_rows(load: LoadCase, absorbers_of, factors, key):
+def sweep_rows(load: LoadedMode, absorbers_of, factors, key):
     m = load.mode
     a = assess(m.frequency_hz * (factors if key == "structure_frequency_factor" else 1.0),
                m.modal_mass_kg, m.damping_ratio, absorbers_of(factors), load.spectrum,
@@ -68,7 +68,7 @@ def fixed_damper(design: dict, mass=1.0, frequency=None, damping=None):
 def full_results(case) -> dict:
     """design_job's results plus every optional section (documented keys)."""
     results = design_job(case)
-    load = load_case_of(case)
+    load = loaded_mode_of(case)
     design = results["design"]
     damper = TunedMassDamper(design["mass_ratio"], design["frequency_ratio"],
                              design["damping_ratio"])
@@ -136,7 +136,7 @@ def full_results(case) -> dict:
     return results
 
 
-def option_row(name: str, load: LoadCase, case, dampers: list[dict]) -> dict:
+def option_row(name: str, load: LoadedMode, case, dampers: list[dict]) -> dict:
     """An ``options`` entry for TMD-like dampers, evaluated by the engine."""
     m = load.mode
     mass = np.array([[d["mass_kg"] for d in dampers]])

@@ -7,7 +7,7 @@ import numpy as np
 import pytest
 from rich.console import Console
 
-from tmd.jobs import load_case_of
+from tmd.jobs import loaded_mode_of
 from tmd.report import plots, series
 from tmd.report.assemble import render_report
 from tmd.report.comfort import comfort_limits, melbourne_palmer_peak_acceleration
@@ -37,7 +37,7 @@ def two_dof_acceleration(f, mode, design):
 
 def test_force_spectrum_figure(case_report):
     case, _, _ = case_report
-    load = load_case_of(case)
+    load = loaded_mode_of(case)
     f, s = series.force_spectrum_curve(load)
     ax = plots.plot_force_spectrum(f, s, structure_frequency_hz=case.mode.frequency_hz)
     x, y = xy(ax.lines[0])
@@ -59,13 +59,13 @@ def test_force_spectrum_figure(case_report):
 
 def test_frequency_response_figure(case_report):
     case, results, _ = case_report
-    load = load_case_of(case)
+    load = loaded_mode_of(case)
     h = series.acceleration_frequency_response(load, results["design"])
     ax = plots.plot_frequency_response(h.frequency_hz, h.bare, h.damped)
     x, bare = xy(ax.lines[0])
     np.testing.assert_array_equal(x, h.frequency_hz)
     np.testing.assert_array_equal(bare, h.bare)
-    # The load case's mode carries any aerodynamic damping; phi is the mode
+    # The loaded mode carries any aerodynamic damping; phi is the mode
     # shape at the evaluation height (1 for a CSV case).
     m, phi = load.mode, load.shape_factor
     # SDOF at resonance: |H_a(f_s)| = 1 / (2 zeta M*) (Clough & Penzien, dynamic
@@ -83,7 +83,7 @@ def test_frequency_response_figure(case_report):
 
 def test_acceleration_psd_figure(case_report):
     case, results, _ = case_report
-    load = load_case_of(case)
+    load = loaded_mode_of(case)
     p = series.acceleration_psd(load, results["design"])
     bare, design = results["bare"], results["design"]
     ax = plots.plot_acceleration_psd(
@@ -112,7 +112,7 @@ def test_acceleration_psd_figure(case_report):
 
 def test_mass_ratio_figure(case_report):
     case, results, _ = case_report
-    load = load_case_of(case)
+    load = loaded_mode_of(case)
     d = results["design"]
     grid = series.mass_ratio_grid(case.damper.max_mass_ratio, d["mass_ratio"])
     study = series.mass_ratio_study(load, grid, objective=case.damper.objective,
@@ -139,7 +139,7 @@ def test_mass_ratio_figure(case_report):
 
 def test_detuning_figure(full_report):
     case, results, _ = full_report
-    load = load_case_of(case)
+    load = loaded_mode_of(case)
     nominal = series.sweep_from_results(results["sweep"])
     bare = series.sweep_from_results(results["sweep_bare"])
     robust = series.detuned_sweep(load, results["robust_design"],

@@ -4,14 +4,14 @@ import numpy as np
 import pytest
 
 from tmd.dampers.absorber import Absorbers
-from tmd.design import LoadCase, least_mass
+from tmd.design import LoadedMode, least_mass
 from tmd.performance import assess
 from tmd.sizing.bank import BankSettings, size_tmd_bank
 from tmd.spectra import WhiteSpectrum
 from tmd.structure import Mode
 
 # Fictional: a 0.2 Hz tower mode, 1e7 kg, 1% damping, band-limited white force.
-CASE = LoadCase(Mode(0.2, 1e7, 0.01), WhiteSpectrum(4e9, 0.02, 2.0), duration_s=600.0)
+CASE = LoadedMode(Mode(0.2, 1e7, 0.01), WhiteSpectrum(4e9, 0.02, 2.0), duration_s=600.0)
 TARGET = 0.6 * float(CASE.assess(Absorbers.none()).peak_acceleration_m_s2)
 STROKE = 1.5
 

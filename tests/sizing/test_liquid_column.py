@@ -15,7 +15,7 @@ from tmd.dampers.liquid_column import (
     harmonic_equivalent_damping_ratio,
     random_equivalent_damping_ratio,
 )
-from tmd.design import LoadCase
+from tmd.design import LoadedMode
 from tmd.sizing.liquid_column import size_liquid_column, velocity_proportional_fixed_point
 from tmd.spectra import WhiteSpectrum
 from tmd.structure import Mode
@@ -78,7 +78,7 @@ def test_linearised_column_agrees_with_nonlinear_time_domain_simulation():
     level, f1, f2 = 2e4, 0.1, 4.0
     length = float(column_length_m(fl))
     m = mu * big_m
-    case = LoadCase(Mode(fs, big_m, zs), WhiteSpectrum(level, f1, f2))
+    case = LoadedMode(Mode(fs, big_m, zs), WhiteSpectrum(level, f1, f2))
     zeta, a = velocity_proportional_fixed_point(case, m, fl, alpha,
                                                 float(column_damping_gain(xi, length, fl)))
     assert 0.03 < zeta[0] < 0.08  # the case exercises a realistic equivalent damping
@@ -119,7 +119,7 @@ def test_linearised_column_agrees_with_nonlinear_time_domain_simulation():
 @pytest.fixture(scope="module")
 def demo_case():
     # Fictional: a 0.2 Hz tower mode, 1e7 kg, 1% damping, band-limited white force.
-    return LoadCase(Mode(0.2, 1e7, 0.01), WhiteSpectrum(4e9, 0.02, 2.0), duration_s=600.0)
+    return LoadedMode(Mode(0.2, 1e7, 0.01), WhiteSpectrum(4e9, 0.02, 2.0), duration_s=600.0)
 
 
 def test_sized_column_meets_target_at_its_fixed_point(demo_case):

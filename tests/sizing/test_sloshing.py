@@ -16,7 +16,7 @@ from tmd.dampers.sloshing import (
     tank_length_m,
     wall_elevation_per_displacement,
 )
-from tmd.design import LoadCase
+from tmd.design import LoadedMode
 from tmd.sizing.liquid_column import velocity_proportional_fixed_point
 from tmd.sizing.sloshing import size_sloshing_tanks
 from tmd.spectra import WhiteSpectrum
@@ -74,7 +74,7 @@ def test_unscreened_tank_has_little_damping():
 
 
 def test_sized_tanks_meet_target_and_respect_freeboard():
-    case = LoadCase(Mode(0.2, 1e7, 0.01), WhiteSpectrum(4e9, 0.02, 2.0))
+    case = LoadedMode(Mode(0.2, 1e7, 0.01), WhiteSpectrum(4e9, 0.02, 2.0))
     target = 0.6 * float(case.assess(Absorbers.none()).peak_acceleration_m_s2)
     settings = TankSettings(depth_ratio=0.12, max_tank_width_m=6.0, freeboard_m=0.5)
     d = size_sloshing_tanks(case, target, max_mass_ratio=0.1, settings=settings)

@@ -4,7 +4,7 @@ import math
 
 import pytest
 
-from tmd.design import LoadCase
+from tmd.design import LoadedMode
 from tmd.sizing.viscous import (
     ViscousSettings,
     damper_constant_n_s_per_m,
@@ -28,14 +28,14 @@ def test_velocity_rms_matches_crandall_and_mark():
     # size ~ (4 zeta / pi) / 50 ~ 1e-3 of the velocity variance.
     mode = Mode(0.2, 1e7, 0.03)
     level = 4e9
-    case = LoadCase(mode, WhiteSpectrum(level, 0.0, 10.0))
+    case = LoadedMode(mode, WhiteSpectrum(level, 0.0, 10.0))
     omega = 2 * math.pi * mode.frequency_hz
     sigma_v = math.sqrt(level / (8 * mode.damping_ratio * omega * mode.modal_mass_kg**2))
     assert velocity_statistics(case, mode.damping_ratio)[0] == pytest.approx(sigma_v, rel=2e-3)
 
 
 def test_required_damping_meets_the_target_exactly():
-    case = LoadCase(Mode(0.2, 1e7, 0.01), WhiteSpectrum(4e9, 0.02, 2.0))
+    case = LoadedMode(Mode(0.2, 1e7, 0.01), WhiteSpectrum(4e9, 0.02, 2.0))
     d = size_added_damping(case, 0.05, settings=ViscousSettings(0.4, 8))
     assert d.meets_target
     assert d.peak_acceleration_m_s2 == pytest.approx(0.05, rel=1e-9)  # brentq tolerance

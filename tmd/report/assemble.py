@@ -14,7 +14,7 @@ import numpy as np
 
 from tmd.case import Case
 from tmd.defaults import FREQUENCY_BAND
-from tmd.jobs import load_case_of
+from tmd.jobs import loaded_mode_of
 from tmd.report import plots, series
 from tmd.report.comfort import comfort_limits
 from tmd.report.html import Callout, Figure, Section, document
@@ -88,7 +88,7 @@ class _Report:
     def __init__(self, case, results, dpi, wind_spectrum, on_step):
         self.case, self.results, self.dpi = case, results, dpi
         self.wind_spectrum, self.on_step = wind_spectrum, on_step
-        self.load = load_case_of(case)
+        self.load = loaded_mode_of(case)
         self.design = results.get("design")
         self.target = float(results["target"]["peak_acceleration_m_s2"])
         self.tables: list[Table] = []

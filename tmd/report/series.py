@@ -2,8 +2,8 @@
 
 Every function returns plain numpy arrays in SI units (frequencies in Hz), so
 that a figure can be checked against them. Responses are those of the case's
-design load (:func:`tmd.jobs.load_case_of`), with acceleration at the
-evaluation height (the load case's shape factor).
+design load (:func:`tmd.jobs.loaded_mode_of`), with acceleration at the
+evaluation height (the loaded mode's shape factor).
 """
 
 from __future__ import annotations
@@ -14,7 +14,7 @@ import numpy as np
 
 from tmd.dampers.absorber import Absorbers, single_tmd
 from tmd.dampers.tuned_mass import TunedMassDamper
-from tmd.design import LoadCase, tune
+from tmd.design import LoadedMode, tune
 from tmd.performance import assess
 from tmd.report.comfort import ComfortLimit
 from tmd.response import transfer_functions
@@ -75,7 +75,7 @@ def response_frequencies(structure_frequency_hz: float) -> np.ndarray:
                         structure_frequency_hz * RESPONSE_SPAN, RESPONSE_POINTS)
 
 
-def force_spectrum_curve(load: LoadCase) -> tuple[np.ndarray, np.ndarray]:
+def force_spectrum_curve(load: LoadedMode) -> tuple[np.ndarray, np.ndarray]:
     """The modal force PSD S_F(f) [N^2/Hz] over its support (or f_s/100 .. 100 f_s).
 
     Returns
@@ -89,7 +89,7 @@ def force_spectrum_curve(load: LoadCase) -> tuple[np.ndarray, np.ndarray]:
     return f, np.asarray(load.spectrum(f), dtype=float)
 
 
-def _acceleration_transfer(load: LoadCase, design: dict | None, f: np.ndarray):
+def _acceleration_transfer(load: LoadedMode, design: dict | None, f: np.ndarray):
     m = load.mode
     h_bare = transfer_functions(f, m.frequency_hz, m.modal_mass_kg, m.damping_ratio,
                                 Absorbers.none())["acceleration"]
@@ -100,7 +100,7 @@ def _acceleration_transfer(load: LoadCase, design: dict | None, f: np.ndarray):
     return load.shape_factor * h_bare, None if h_damped is None else load.shape_factor * h_damped
 
 
-def acceleration_frequency_response(load: LoadCase, design: dict | None) -> ResponseCurves:
+def acceleration_frequency_response(load: LoadedMode, design: dict | None) -> ResponseCurves:
     """|H_a(f)| [m/s^2 per N] at the evaluation height, bare and damped.
 
     Notes
@@ -113,7 +113,7 @@ def acceleration_frequency_response(load: LoadCase, design: dict | None) -> Resp
     return ResponseCurves(f, np.abs(bare), None if damped is None else np.abs(damped))
 
 
-def acceleration_psd(load: LoadCase, design: dict | None) -> ResponseCurves:
+def acceleration_psd(load: LoadedMode, design: dict | None) -> ResponseCurves:
     """One-sided acceleration PSD S_a(f) = |H_a(f)|^2 S_F(f) [(m/s^2)^2/Hz], bare and damped."""
     f = response_frequencies(load.mode.frequency_hz)
     bare, damped = _acceleration_transfer(load, design, f)
@@ -131,7 +131,7 @@ def mass_ratio_grid(max_mass_ratio: float, design_mass_ratio: float | None) -> n
     return grid
 
 
-def mass_ratio_study(load: LoadCase, mass_ratio: np.ndarray, *, objective: str,
+def mass_ratio_study(load: LoadedMode, mass_ratio: np.ndarray, *, objective: str,
                      max_stroke_m: float | None) -> MassRatioStudy:
     """Peak acceleration and stroke of the best tuning at each mass ratio.
 
@@ -157,7 +157,7 @@ def sweep_from_results(rows: list[dict]) -> Sweep:
     return Sweep(s[order], a[order])
 
 
-def detuned_sweep(load: LoadCase, design: dict, factors: np.ndarray) -> Sweep:
+def detuned_sweep(load: LoadedMode, design: dict, factors: np.ndarray) -> Sweep:
     """Peak acceleration of a fixed damper as the structure frequency is scaled by s.
 
     The structure keeps its modal mass and damping ratio (its stiffness scales

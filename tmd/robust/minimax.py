@@ -25,7 +25,7 @@ from tmd.design import (
     DAMPING_RATIO_BOUNDS,
     FREQUENCY_RATIO_BOUNDS,
     DesignError,
-    LoadCase,
+    LoadedMode,
     TmdDesign,
     central_difference_gradient,
     central_difference_points,
@@ -84,7 +84,7 @@ class RobustSizing:
 
 # --- robust design ------------------------------------------------------------
 
-def tune_for_band(case: LoadCase, mass_ratio: float, frequency_factors, *,
+def tune_for_band(loaded: LoadedMode, mass_ratio: float, frequency_factors, *,
                   max_stroke_m: float | None = None,
                   structure_damping_ratio: StructureDamping | None = None,
                   start: tuple[float, float] | None = None) -> BandTuning:
@@ -92,7 +92,7 @@ def tune_for_band(case: LoadCase, mass_ratio: float, frequency_factors, *,
 
     Parameters
     ----------
-    case : LoadCase
+    loaded : LoadedMode
     mass_ratio : float
         mu = m_d / M* [-].
     frequency_factors : array
@@ -126,18 +126,18 @@ def tune_for_band(case: LoadCase, mass_ratio: float, frequency_factors, *,
     when the free minimax optimum violates it.
     """
     factors = np.asarray(frequency_factors, float)
-    nominal = tune(case, mass_ratio)
+    nominal = tune(loaded, mass_ratio)
     zeta0 = nominal.damping_ratio
     starts = [(nominal.frequency_ratio, zeta0) if start is None else start]
     if factors.size > 1:
         starts.append((nominal.frequency_ratio, min(1.5 * zeta0, DAMPING_RATIO_BOUNDS[1])))
-    free = _solve_band(_BandProblem(case, mass_ratio, factors, None, structure_damping_ratio),
+    free = _solve_band(_BandProblem(loaded, mass_ratio, factors, None, structure_damping_ratio),
                        starts)
     if max_stroke_m is None or free[3] <= max_stroke_m:
         # The limit is not active at the free optimum, so that is the optimum.
         return BandTuning(float(free[2][0]), float(math.exp(free[2][1])), math.exp(free[1]),
                           free[3], False)
-    problem = _BandProblem(case, mass_ratio, factors, max_stroke_m, structure_damping_ratio)
+    problem = _BandProblem(loaded, mass_ratio, factors, max_stroke_m, structure_damping_ratio)
     infeasible, worst, x, stroke = _solve_band(problem, starts + [(free[2][0],
                                                                    math.exp(free[2][1]))])
     infeasible = stroke > max_stroke_m * (1 + 1e-6)
@@ -169,7 +169,7 @@ def _solve_band(problem, starts):
     return best
 
 
-def robust_least_mass(case: LoadCase, target_peak_m_s2: float, frequency_band: float, *,
+def robust_least_mass(loaded: LoadedMode, target_peak_m_s2: float, frequency_band: float, *,
                       max_mass_ratio: float, max_stroke_m: float | None = None,
                       min_mass_ratio: float = 1e-4,
                       structure_damping_ratio: StructureDamping | None = None,
@@ -179,7 +179,7 @@ def robust_least_mass(case: LoadCase, target_peak_m_s2: float, frequency_band: f
 
     Parameters
     ----------
-    case : LoadCase
+    loaded : LoadedMode
     target_peak_m_s2 : float
         Peak acceleration target at the evaluation height [m/s^2].
     frequency_band : float
@@ -212,7 +212,7 @@ def robust_least_mass(case: LoadCase, target_peak_m_s2: float, frequency_band: f
     target, that point joins the grid and the search repeats (an exchange
     step, at most four times).
     """
-    bare = peak_acceleration_band_max(case, None, frequency_band,
+    bare = peak_acceleration_band_max(loaded, None, frequency_band,
                                       structure_damping_ratio=structure_damping_ratio)
     if bare.peak_acceleration_m_s2 <= target_peak_m_s2:
         return RobustSizing(None, frequency_band, bare, True, "bare", (
@@ -221,7 +221,7 @@ def robust_least_mass(case: LoadCase, target_peak_m_s2: float, frequency_band: f
     grid = factor_grid(frequency_band, optimiser_points)
     goal = target_peak_m_s2 * (1.0 - TARGET_MARGIN)
     for _ in range(EXCHANGE_ROUNDS + 1):
-        sizing = _robust_search(case, goal, target_peak_m_s2, frequency_band, grid,
+        sizing = _robust_search(loaded, goal, target_peak_m_s2, frequency_band, grid,
                                 max_mass_ratio, min_mass_ratio, max_stroke_m,
                                 structure_damping_ratio, check_points)
         worst = sizing.band_maximum
@@ -234,14 +234,14 @@ def robust_least_mass(case: LoadCase, target_peak_m_s2: float, frequency_band: f
         f"m/s^2 exceeds the target at s = {worst.structure_frequency_factor:.5g}"))
 
 
-def _robust_search(case, goal, target, band, grid, max_mu, min_mu, max_stroke_m, damping,
+def _robust_search(loaded, goal, target, band, grid, max_mu, min_mu, max_stroke_m, damping,
                    check_points) -> RobustSizing:
     last = []
 
     def best(mu):
         # Warm-started from the last tuning: SLSQP from the nominal optimum can
         # zig-zag on the nearly degenerate worst-case constraints.
-        tuning = tune_for_band(case, mu, grid, max_stroke_m=max_stroke_m,
+        tuning = tune_for_band(loaded, mu, grid, max_stroke_m=max_stroke_m,
                                structure_damping_ratio=damping,
                                start=last[-1] if last else None)
         if np.isfinite(tuning.value):
@@ -250,10 +250,10 @@ def _robust_search(case, goal, target, band, grid, max_mu, min_mu, max_stroke_m,
 
     def finish(mu, tuning, met, governed_by, message):
         damper = TunedMassDamper(mu, tuning.frequency_ratio, tuning.damping_ratio)
-        worst = peak_acceleration_band_max(case, damper, band, points=check_points,
+        worst = peak_acceleration_band_max(loaded, damper, band, points=check_points,
                                            structure_damping_ratio=damping)
         met = met and worst.peak_acceleration_m_s2 <= target
-        return RobustSizing(evaluate_tmd(case, damper, target), band, worst, met, governed_by,
+        return RobustSizing(evaluate_tmd(loaded, damper, target), band, worst, met, governed_by,
                             message)
 
     top = best(max_mu)
@@ -282,9 +282,9 @@ def _robust_search(case, goal, target, band, grid, max_mu, min_mu, max_stroke_m,
 class _BandProblem:
     """Worst-case constraints over a grid of s with batched central differences."""
 
-    def __init__(self, case, mass_ratio, factors, max_stroke_m, damping):
-        self.case, self.mu, self.s, self.max_stroke = case, mass_ratio, factors, max_stroke_m
-        self.zeta_s = structure_damping_ratios(case, factors, damping)
+    def __init__(self, loaded, mass_ratio, factors, max_stroke_m, damping):
+        self.loaded, self.mu, self.s, self.max_stroke = loaded, mass_ratio, factors, max_stroke_m
+        self.zeta_s = structure_damping_ratios(loaded, factors, damping)
         self._x = None
 
     def evaluate(self, x):
@@ -292,13 +292,14 @@ class _BandProblem:
         if self._x is not None and np.array_equal(x, self._x):
             return
         pts = central_difference_points(x)
-        m = self.case.mode
+        m = self.loaded.mode
         absorbers = Absorbers.tuned_masses(
             np.full((5, 1, 1), self.mu * m.modal_mass_kg),
             (pts[:, 0] * m.frequency_hz)[:, None, None],
             np.exp(pts[:, 1])[:, None, None])
         a = assess(self.s * m.frequency_hz, m.modal_mass_kg, self.zeta_s, absorbers,
-                   self.case.spectrum, self.case.duration_s, shape_factor=self.case.shape_factor)
+                   self.loaded.spectrum, self.loaded.duration_s,
+                   shape_factor=self.loaded.shape_factor)
         log_peak = np.log(a.peak_acceleration_m_s2)
         log_stroke = np.log(a.peak_stroke_m[..., 0])
         # A copy: SLSQP may hand over its own buffer and change it in place.

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from tmd.dampers.tuned_mass import TunedMassDamper
 from tmd.defaults import FREQUENCY_BAND, MAX_MASS_RATIO
-from tmd.design import LoadCase
+from tmd.design import LoadedMode
 from tmd.robust.minimax import RobustSizing, robust_least_mass
 from tmd.robust.sweeps import (
     DASHPOT_RANGE,
@@ -21,7 +21,7 @@ from tmd.schema import design_block
 
 # --- one call per job -------------------------------------------------------
 
-def robustness_study(case: LoadCase, nominal: TunedMassDamper, target_peak_m_s2: float, *,
+def robustness_study(loaded: LoadedMode, nominal: TunedMassDamper, target_peak_m_s2: float, *,
                      frequency_band: float = FREQUENCY_BAND, sweep_range: float = SWEEP_RANGE,
                      robust_design: bool = True, max_mass_ratio: float = MAX_MASS_RATIO,
                      max_stroke_m: float | None = None,
@@ -31,7 +31,7 @@ def robustness_study(case: LoadCase, nominal: TunedMassDamper, target_peak_m_s2:
 
     Parameters
     ----------
-    case : LoadCase
+    loaded : LoadedMode
     nominal : TunedMassDamper
         The design sized for the nominal structure (e.g. from
         :func:`tmd.design.least_mass`).
@@ -74,15 +74,15 @@ def robustness_study(case: LoadCase, nominal: TunedMassDamper, target_peak_m_s2:
     The extra mass is measured against the ``nominal`` damper given, so with
     a fixed-mass nominal design it can be negative.
     """
-    result = design_sweeps(case, nominal, frequency_band=frequency_band,
+    result = design_sweeps(loaded, nominal, frequency_band=frequency_band,
                            sweep_range=sweep_range,
                            structure_damping_ratio=structure_damping_ratio)
     worst = BandMaximum(result["peak_acceleration_band_max_m_s2"],
                         result["worst_structure_frequency_factor"])
-    at_nominal = float(case.assess(nominal.absorbers(case.mode)).peak_acceleration_m_s2)
+    at_nominal = float(loaded.assess(nominal.absorbers(loaded.mode)).peak_acceleration_m_s2)
     robust = None
     if robust_design:
-        robust = robust_least_mass(case, target_peak_m_s2, frequency_band,
+        robust = robust_least_mass(loaded, target_peak_m_s2, frequency_band,
                                    max_mass_ratio=max_mass_ratio, max_stroke_m=max_stroke_m,
                                    structure_damping_ratio=structure_damping_ratio)
         result["robust_design"] = robust_design_block(robust)
@@ -90,24 +90,24 @@ def robustness_study(case: LoadCase, nominal: TunedMassDamper, target_peak_m_s2:
         from tmd.probabilistic import probabilistic_study  # avoids an import cycle
 
         result["probabilistic"] = probabilistic_study(
-            case, nominal, target_peak_m_s2, probabilistic,
+            loaded, nominal, target_peak_m_s2, probabilistic,
             robust=robust.design.damper if robust and robust.design else None,
             max_mass_ratio=max_mass_ratio, max_stroke_m=max_stroke_m,
             structure_damping_ratio=structure_damping_ratio)
     extra = None
     if robust is not None and robust.design is not None:
-        extra = robust.design.mass_kg - nominal.mass_kg(case.mode)
+        extra = robust.design.mass_kg - nominal.mass_kg(loaded.mode)
     result["summary"] = {
         "nominal_band_loss": worst.peak_acceleration_m_s2 / at_nominal - 1.0,
         "nominal_band_max_over_target": worst.peak_acceleration_m_s2 / target_peak_m_s2,
         "robust_extra_mass_kg": extra,
         "robust_extra_mass_fraction": (None if extra is None
-                                       else extra / nominal.mass_kg(case.mode)),
+                                       else extra / nominal.mass_kg(loaded.mode)),
     }
     return result
 
 
-def design_sweeps(case: LoadCase, damper: TunedMassDamper, *,
+def design_sweeps(loaded: LoadedMode, damper: TunedMassDamper, *,
                   frequency_band: float = FREQUENCY_BAND, sweep_range: float = SWEEP_RANGE,
                   spring_range: float = SPRING_RANGE,
                   dashpot_range: float = DASHPOT_RANGE,
@@ -116,7 +116,7 @@ def design_sweeps(case: LoadCase, damper: TunedMassDamper, *,
 
     Parameters
     ----------
-    case : LoadCase
+    loaded : LoadedMode
     damper : TunedMassDamper
         The design, relative to the nominal mode.
     frequency_band : float
@@ -134,17 +134,17 @@ def design_sweeps(case: LoadCase, damper: TunedMassDamper, *,
         keys), ``peak_acceleration_band_max_m_s2`` and the s where it occurs,
         ``worst_structure_frequency_factor`` [-].
     """
-    worst = peak_acceleration_band_max(case, damper, frequency_band,
+    worst = peak_acceleration_band_max(loaded, damper, frequency_band,
                                        structure_damping_ratio=structure_damping_ratio)
     return {
         "frequency_band": frequency_band,
-        "sweep": sweep_structure_frequency(case, damper, sweep_range=sweep_range,
+        "sweep": sweep_structure_frequency(loaded, damper, sweep_range=sweep_range,
                                            structure_damping_ratio=structure_damping_ratio),
-        "sweep_bare": sweep_structure_frequency(case, None, sweep_range=sweep_range,
+        "sweep_bare": sweep_structure_frequency(loaded, None, sweep_range=sweep_range,
                                                 structure_damping_ratio=structure_damping_ratio),
-        "sweep_damper_frequency": sweep_damper_frequency(case, damper,
+        "sweep_damper_frequency": sweep_damper_frequency(loaded, damper,
                                                          spring_range=spring_range),
-        "sweep_damper_damping": sweep_damper_damping(case, damper, dashpot_range=dashpot_range),
+        "sweep_damper_damping": sweep_damper_damping(loaded, damper, dashpot_range=dashpot_range),
         "peak_acceleration_band_max_m_s2": worst.peak_acceleration_m_s2,
         "worst_structure_frequency_factor": worst.structure_frequency_factor,
     }

@@ -20,7 +20,7 @@ from scipy.optimize import minimize_scalar
 from tmd.dampers.absorber import Absorbers
 from tmd.dampers.tuned_mass import TunedMassDamper
 from tmd.defaults import DASHPOT_RANGE, SPRING_RANGE, SWEEP_RANGE
-from tmd.design import LoadCase
+from tmd.design import LoadedMode
 from tmd.performance import assess, effective_damping_ratio
 
 SWEEP_POINTS = 41           # s step 0.01 over +/-20%
@@ -67,7 +67,7 @@ class BandMaximum:
 
 # --- sweeps -------------------------------------------------------------------
 
-def sweep_structure_frequency(case: LoadCase, damper: TunedMassDamper | None, *,
+def sweep_structure_frequency(loaded: LoadedMode, damper: TunedMassDamper | None, *,
                               sweep_range: float = SWEEP_RANGE, points: int = SWEEP_POINTS,
                               structure_damping_ratio: StructureDamping | None = None
                               ) -> list[dict]:
@@ -75,7 +75,7 @@ def sweep_structure_frequency(case: LoadCase, damper: TunedMassDamper | None, *,
 
     Parameters
     ----------
-    case : LoadCase
+    loaded : LoadedMode
     damper : TunedMassDamper or None
         The design (absolute m_d, k_d, c_d kept as s varies); None for the
         bare building.
@@ -102,24 +102,24 @@ def sweep_structure_frequency(case: LoadCase, damper: TunedMassDamper | None, *,
     it is zeta_s(s) by definition.
     """
     s = factor_grid(sweep_range, points)
-    a, zeta_s = assess_structure_factors(case, damper, s, structure_damping_ratio)
+    a, zeta_s = assess_structure_factors(loaded, damper, s, structure_damping_ratio)
     if damper is None:
         return _points("structure_frequency_factor", s, a.peak_acceleration_m_s2, None, zeta_s)
-    zeta_eff = effective_damping_ratio(s * case.mode.frequency_hz, case.mode.modal_mass_kg,
-                                       a.sigma_acceleration_m_s2 / case.shape_factor,
-                                       case.spectrum)
+    zeta_eff = effective_damping_ratio(s * loaded.mode.frequency_hz, loaded.mode.modal_mass_kg,
+                                       a.sigma_acceleration_m_s2 / loaded.shape_factor,
+                                       loaded.spectrum)
     return _points("structure_frequency_factor", s, a.peak_acceleration_m_s2,
                    a.peak_stroke_m[..., 0], zeta_eff)
 
 
-def sweep_damper_frequency(case: LoadCase, damper: TunedMassDamper, *,
+def sweep_damper_frequency(loaded: LoadedMode, damper: TunedMassDamper, *,
                            spring_range: float = SPRING_RANGE,
                            points: int = DAMPER_SWEEP_POINTS) -> list[dict]:
     """Responses of the nominal structure with the damper's spring off its design value.
 
     Parameters
     ----------
-    case : LoadCase
+    loaded : LoadedMode
     damper : TunedMassDamper
     spring_range : float
         Half-width of the spring stiffness factor k_d'/k_d in
@@ -142,25 +142,25 @@ def sweep_damper_frequency(case: LoadCase, damper: TunedMassDamper, *,
     """
     stiffness = factor_grid(spring_range, points)
     factor = np.sqrt(stiffness)
-    m = case.mode
+    m = loaded.mode
     absorbers = Absorbers.tuned_masses(
         np.full((factor.size, 1), damper.mass_kg(m)),
         (damper.frequency_hz(m) * factor)[:, None],
         (damper.damping_ratio / factor)[:, None])
-    points_ = _damper_points(case, absorbers, "damper_frequency_factor", factor)
+    points_ = _damper_points(loaded, absorbers, "damper_frequency_factor", factor)
     for point, k in zip(points_, stiffness, strict=True):
         point["damper_stiffness_factor"] = float(k)
     return points_
 
 
-def sweep_damper_damping(case: LoadCase, damper: TunedMassDamper, *,
+def sweep_damper_damping(loaded: LoadedMode, damper: TunedMassDamper, *,
                          dashpot_range: float = DASHPOT_RANGE,
                          points: int = DAMPER_SWEEP_POINTS) -> list[dict]:
     """Responses of the nominal structure with the damper's dashpot off its design value.
 
     Parameters
     ----------
-    case : LoadCase
+    loaded : LoadedMode
     damper : TunedMassDamper
     dashpot_range : float
         Half-width of the dashpot factor c_d'/c_d in [1 - r, 1 + r] [-]
@@ -179,15 +179,15 @@ def sweep_damper_damping(case: LoadCase, damper: TunedMassDamper, *,
     At fixed m_d and f_d the damping ratio scales with the dashpot.
     """
     factor = factor_grid(dashpot_range, points)
-    m = case.mode
+    m = loaded.mode
     absorbers = Absorbers.tuned_masses(
         np.full((factor.size, 1), damper.mass_kg(m)),
         np.full((factor.size, 1), damper.frequency_hz(m)),
         (damper.damping_ratio * factor)[:, None])
-    return _damper_points(case, absorbers, "damper_damping_factor", factor)
+    return _damper_points(loaded, absorbers, "damper_damping_factor", factor)
 
 
-def peak_acceleration_band_max(case: LoadCase, damper: TunedMassDamper | None,
+def peak_acceleration_band_max(loaded: LoadedMode, damper: TunedMassDamper | None,
                                frequency_band: float, *, points: int = BAND_SEARCH_POINTS,
                                structure_damping_ratio: StructureDamping | None = None
                                ) -> BandMaximum:
@@ -195,7 +195,7 @@ def peak_acceleration_band_max(case: LoadCase, damper: TunedMassDamper | None,
 
     Parameters
     ----------
-    case : LoadCase
+    loaded : LoadedMode
     damper : TunedMassDamper or None
         None for the bare building.
     frequency_band : float
@@ -216,7 +216,7 @@ def peak_acceleration_band_max(case: LoadCase, damper: TunedMassDamper | None,
     a band edge or inside the band.
     """
     def peaks(factors):
-        a = assess_structure_factors(case, damper, factors, structure_damping_ratio)[0]
+        a = assess_structure_factors(loaded, damper, factors, structure_damping_ratio)[0]
         return a.peak_acceleration_m_s2
 
     return band_maximum(peaks, frequency_band, points=points)
@@ -278,32 +278,32 @@ def factor_grid(half_range: float, points: int) -> np.ndarray:
     return grid
 
 
-def structure_damping_ratios(case: LoadCase, factors, structure_damping_ratio=None):
+def structure_damping_ratios(loaded: LoadedMode, factors, structure_damping_ratio=None):
     """zeta_s at each structure frequency factor [-] (the mode's own when None)."""
     s = np.asarray(factors, float)
     if structure_damping_ratio is None:
-        return np.full(s.shape, case.mode.damping_ratio)
+        return np.full(s.shape, loaded.mode.damping_ratio)
     return np.broadcast_to(np.asarray(structure_damping_ratio(s), float), s.shape)
 
 
-def assess_structure_factors(case: LoadCase, damper: TunedMassDamper | None, factors,
+def assess_structure_factors(loaded: LoadedMode, damper: TunedMassDamper | None, factors,
                              structure_damping_ratio=None):
     """One engine call over structure frequency factors; returns (Assessment, zeta_s)."""
     s = np.asarray(factors, float)
-    zeta_s = structure_damping_ratios(case, s, structure_damping_ratio)
-    m = case.mode
+    zeta_s = structure_damping_ratios(loaded, s, structure_damping_ratio)
+    m = loaded.mode
     absorbers = Absorbers.none(s.shape) if damper is None else damper.absorbers(m)
-    a = assess(s * m.frequency_hz, m.modal_mass_kg, zeta_s, absorbers, case.spectrum,
-               case.duration_s, shape_factor=case.shape_factor)
+    a = assess(s * m.frequency_hz, m.modal_mass_kg, zeta_s, absorbers, loaded.spectrum,
+               loaded.duration_s, shape_factor=loaded.shape_factor)
     return a, zeta_s
 
 
-def _damper_points(case, absorbers, key, factors):
-    a = case.assess(absorbers)
-    m = case.mode
+def _damper_points(loaded, absorbers, key, factors):
+    a = loaded.assess(absorbers)
+    m = loaded.mode
     zeta_eff = effective_damping_ratio(m.frequency_hz, m.modal_mass_kg,
-                                       a.sigma_acceleration_m_s2 / case.shape_factor,
-                                       case.spectrum)
+                                       a.sigma_acceleration_m_s2 / loaded.shape_factor,
+                                       loaded.spectrum)
     return _points(key, factors, a.peak_acceleration_m_s2, a.peak_stroke_m[..., 0], zeta_eff)
 
 

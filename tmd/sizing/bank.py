@@ -55,7 +55,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from tmd.dampers.absorber import Absorbers
-from tmd.design import DesignError, LoadCase
+from tmd.design import DesignError, LoadedMode
 from tmd.grid import pole_grid
 from tmd.performance import Assessment, assess
 from tmd.response import closed_loop_poles, resonances
@@ -75,7 +75,7 @@ class BankSolverError(DesignError):
 
 @dataclass(frozen=True)
 class BankSettings:
-    """The candidate dictionary and the iteration (case keys under [options]).
+    """The candidate dictionary and the iteration (loaded keys under [options]).
 
     Parameters
     ----------
@@ -151,24 +151,24 @@ class BankDesign:
 class _Problem:
     """The structure, load, scenarios and limits, with the engine check."""
 
-    def __init__(self, case, target, max_stroke_m, factors, frequency_hz, damping_ratio):
-        self.case, self.target, self.max_stroke = case, target, max_stroke_m
+    def __init__(self, loaded, target, max_stroke_m, factors, frequency_hz, damping_ratio):
+        self.loaded, self.target, self.max_stroke = loaded, target, max_stroke_m
         self.s = np.asarray(factors, float)
         self.f = np.asarray(frequency_hz, float)
         self.zeta = np.asarray(damping_ratio, float)
-        m = case.mode
+        m = loaded.mode
         self.fs = self.s * m.frequency_hz
         self.k0 = m.stiffness_n_per_m
 
     def absorbers(self, mu, keep):
-        m = self.case.mode
+        m = self.loaded.mode
         shape = (self.s.size, int(keep.sum()))
         return Absorbers.tuned_masses(np.broadcast_to(mu[keep] * m.modal_mass_kg, shape),
                                       np.broadcast_to(self.f[keep], shape),
                                       np.broadcast_to(self.zeta[keep], shape))
 
     def assess(self, mu, keep) -> Assessment:
-        m, c = self.case.mode, self.case
+        m, c = self.loaded.mode, self.loaded
         return assess(self.fs, m.modal_mass_kg, m.damping_ratio, self.absorbers(mu, keep),
                       c.spectrum, c.duration_s, shape_factor=c.shape_factor)
 
@@ -187,7 +187,7 @@ class _Problem:
         return max(acc, stroke) <= 1.0 + CHECK_TOLERANCE
 
 
-def size_tmd_bank(case: LoadCase, target_peak_m_s2: float, *, max_mass_ratio: float,
+def size_tmd_bank(loaded: LoadedMode, target_peak_m_s2: float, *, max_mass_ratio: float,
                   max_stroke_m: float | None = None,
                   settings: BankSettings = BankSettings(),
                   frequency_ratios=None, damping_ratios=None) -> BankDesign:
@@ -195,7 +195,7 @@ def size_tmd_bank(case: LoadCase, target_peak_m_s2: float, *, max_mass_ratio: fl
 
     Parameters
     ----------
-    case : LoadCase
+    loaded : LoadedMode
     target_peak_m_s2 : float
         Peak acceleration target at the evaluation height, in every scenario
         [m/s^2].
@@ -229,8 +229,8 @@ def size_tmd_bank(case: LoadCase, target_peak_m_s2: float, *, max_mass_ratio: fl
     else:
         ratios, zetas = (np.atleast_1d(np.asarray(v, float)) for v in
                          (frequency_ratios, damping_ratios))
-    problem = _Problem(case, target_peak_m_s2, max_stroke_m, settings.frequency_factors,
-                       ratios * case.mode.frequency_hz, zetas)
+    problem = _Problem(loaded, target_peak_m_s2, max_stroke_m, settings.frequency_factors,
+                       ratios * loaded.mode.frequency_hz, zetas)
     n = ratios.size
     keep = np.ones(n, bool)
     bare_acc = float(np.max(problem.assess(np.zeros(n), keep).peak_acceleration_m_s2))
@@ -311,8 +311,8 @@ def _convex_step(problem: _Problem, mu, keep):
     """
     import cvxpy as cp  # here, not at module level: importing it takes ~1 s
 
-    m = problem.case.mode
-    c = problem.case
+    m = problem.loaded.mode
+    c = problem.loaded
     idx = np.flatnonzero(keep)
     a = problem.assess(mu, keep)
     absorbers = problem.absorbers(mu, keep)
@@ -370,7 +370,7 @@ def _iterate(problem, mu, keep, step, status) -> BankIterate:
 
 
 def _design(problem, mu, keep, meets, governed, message, history) -> BankDesign:
-    mass = problem.case.mode.modal_mass_kg
+    mass = problem.loaded.mode.modal_mass_kg
     used = keep & (mu > 0)
     return BankDesign(mass_kg=mu[used] * mass, frequency_hz=problem.f[used].copy(),
                       damping_ratio=problem.zeta[used].copy(), mass_ratio=float(mu[used].sum()),

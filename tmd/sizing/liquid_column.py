@@ -65,7 +65,7 @@ from tmd.dampers.liquid_column import (
     head_loss_for_damping,
     leg_height_m,
 )
-from tmd.design import LoadCase, bare_response, smallest_meeting_mass_ratio, tune
+from tmd.design import LoadedMode, bare_response, smallest_meeting_mass_ratio, tune
 from tmd.performance import Assessment, assess
 from tmd.response import spectral_response
 from tmd.structure import Mode
@@ -131,14 +131,14 @@ class ColumnDesign:
                                    self.frequency_hz)
 
 
-def size_liquid_column(case: LoadCase, target_peak_m_s2: float, *, max_mass_ratio: float,
+def size_liquid_column(loaded: LoadedMode, target_peak_m_s2: float, *, max_mass_ratio: float,
                        settings: ColumnSettings = ColumnSettings(),
                        iterations: int = 6) -> ColumnDesign:
     """Least liquid mass of a TLCD that meets a peak-acceleration target.
 
     Parameters
     ----------
-    case : LoadCase
+    loaded : LoadedMode
     target_peak_m_s2 : float
         Peak acceleration target at the evaluation height [m/s^2].
     max_mass_ratio : float
@@ -165,25 +165,25 @@ def size_liquid_column(case: LoadCase, target_peak_m_s2: float, *, max_mass_rati
     alpha = settings.length_ratio
     if not 0 < alpha < 1:
         raise ValueError(f"length_ratio must lie in (0, 1), got {alpha!r}")
-    mode = case.mode
+    mode = loaded.mode
     frequency = mode.frequency_hz
     sizing = None
     for _ in range(iterations):
         limit = settings.max_excursion_ratio * leg_height_m(column_length_m(frequency), alpha)
-        sizing = least_coupled_mass(case, target_peak_m_s2, alpha, max_mass_ratio=max_mass_ratio,
+        sizing = least_coupled_mass(loaded, target_peak_m_s2, alpha, max_mass_ratio=max_mass_ratio,
                                     max_coordinate_m=limit)
         if sizing.governed_by == "bare" or abs(sizing.frequency_hz / frequency - 1) < 1e-6:
             break
         frequency = sizing.frequency_hz
-    return _column_design(case, sizing, settings)
+    return _column_design(loaded, sizing, settings)
 
 
-def _column_design(case, sizing: CoupledSizing, settings: ColumnSettings) -> ColumnDesign:
-    mode, alpha = case.mode, settings.length_ratio
+def _column_design(loaded, sizing: CoupledSizing, settings: ColumnSettings) -> ColumnDesign:
+    mode, alpha = loaded.mode, settings.length_ratio
     length = float(column_length_m(sizing.frequency_hz))
     mass = sizing.mass_ratio * mode.modal_mass_kg
-    a = case.assess(sizing.absorbers(mode))
-    sigma_v = TWO_PI * float(np.sqrt(_stroke_m2(case, sizing.absorbers(mode))))
+    a = loaded.assess(sizing.absorbers(mode))
+    sigma_v = TWO_PI * float(np.sqrt(_stroke_m2(loaded, sizing.absorbers(mode))))
     xi = head_loss_for_damping(sizing.damping_ratio, sigma_v, length, sizing.frequency_hz)
     h = float(leg_height_m(length, alpha))
     peak = float(a.peak_stroke_m[0])
@@ -200,14 +200,14 @@ def _column_design(case, sizing: CoupledSizing, settings: ColumnSettings) -> Col
         message=sizing.message)
 
 
-def least_coupled_mass(case: LoadCase, target_peak_m_s2: float, coupling: float, *,
+def least_coupled_mass(loaded: LoadedMode, target_peak_m_s2: float, coupling: float, *,
                        max_mass_ratio: float, max_coordinate_m: float | None = None,
                        min_mass_ratio: float = 1e-4) -> CoupledSizing:
     """Least total mass of one linear absorber of coupling beta meeting the target.
 
     Parameters
     ----------
-    case : LoadCase
+    loaded : LoadedMode
     target_peak_m_s2 : float
         Peak acceleration target [m/s^2].
     coupling : float
@@ -232,14 +232,15 @@ def least_coupled_mass(case: LoadCase, target_peak_m_s2: float, coupling: float,
     """
     if not 0 < coupling <= 1:
         raise ValueError(f"coupling must lie in (0, 1], got {coupling!r}")
-    bare = bare_response(case)
+    bare = bare_response(loaded)
     if bare.peak_acceleration_m_s2 <= target_peak_m_s2:
-        return CoupledSizing(0.0, case.mode.frequency_hz, _ZETA_BRACKET[0], coupling, True, "bare",
-                             "the bare building already meets the target: no damper is needed")
+        return CoupledSizing(0.0, loaded.mode.frequency_hz, _ZETA_BRACKET[0], coupling, True,
+                             "bare", "the bare building already meets the target: no damper "
+                             "is needed")
     stroke = None if max_coordinate_m is None else max_coordinate_m / coupling
 
     def best(mu):
-        split, mu_tmd = _split_case(case, mu, coupling)
+        split, mu_tmd = _split_case(loaded, mu, coupling)
         return split, tune(split, mu_tmd, max_stroke_m=stroke)
 
     def sizing(mu, meets, governed, message):
@@ -264,17 +265,17 @@ def least_coupled_mass(case: LoadCase, target_peak_m_s2: float, coupling: float,
                                                       if governed == "stroke" else ""))
 
 
-def _split_case(case: LoadCase, mass_ratio: float, coupling: float):
+def _split_case(loaded: LoadedMode, mass_ratio: float, coupling: float):
     """The mode carrying the rigid part of the absorber, and the TMD mass ratio on it."""
-    m = case.mode
+    m = loaded.mode
     scale = 1.0 + (1.0 - coupling**2) * mass_ratio
     root = math.sqrt(scale)
     mode = Mode(m.frequency_hz / root, m.modal_mass_kg * scale, m.damping_ratio / root)
-    split = LoadCase(mode, case.spectrum, case.duration_s, case.shape_factor)
+    split = LoadedMode(mode, loaded.spectrum, loaded.duration_s, loaded.shape_factor)
     return split, coupling**2 * mass_ratio / scale
 
 
-def velocity_proportional_fixed_point(case: LoadCase, mass_kg: float, frequency_hz: float,
+def velocity_proportional_fixed_point(loaded: LoadedMode, mass_kg: float, frequency_hz: float,
                                       coupling: float, gain_s_per_m: float, *,
                                       damping_floor: float = 0.0, frequency_scale=1.0
                                       ) -> tuple[np.ndarray, Assessment]:
@@ -282,7 +283,7 @@ def velocity_proportional_fixed_point(case: LoadCase, mass_kg: float, frequency_
 
     Parameters
     ----------
-    case : LoadCase
+    loaded : LoadedMode
     mass_kg, frequency_hz, coupling : float
         The absorber (total mass [kg], own frequency [Hz], beta [-]).
     gain_s_per_m : float
@@ -311,7 +312,7 @@ def velocity_proportional_fixed_point(case: LoadCase, mass_kg: float, frequency_
     ``scipy.optimize.elementwise.find_root``).
     """
     scale = np.atleast_1d(np.asarray(frequency_scale, float))
-    m = case.mode
+    m = loaded.mode
     fs = m.frequency_hz * scale
 
     def absorbers(zeta):
@@ -320,26 +321,26 @@ def velocity_proportional_fixed_point(case: LoadCase, mass_kg: float, frequency_
 
     def gap(log_zeta, fs_):
         zeta = np.exp(log_zeta)
-        sigma_v = TWO_PI * np.sqrt(_stroke_m2(case, absorbers(zeta), fs_))
+        sigma_v = TWO_PI * np.sqrt(_stroke_m2(loaded, absorbers(zeta), fs_))
         return log_zeta - np.log(damping_floor + gain_s_per_m * sigma_v)
 
     lo, hi = (np.full(scale.shape, math.log(b)) for b in _ZETA_BRACKET)
     result = find_root(gap, (lo, hi), args=(fs,), tolerances={"xatol": 1e-12, "xrtol": 1e-12})
     zeta = np.exp(result.x)
-    a = _assess(case, absorbers(zeta), fs)
+    a = _assess(loaded, absorbers(zeta), fs)
     return zeta, a
 
 
-def _assess(case: LoadCase, absorbers: Absorbers, frequency_hz=None) -> Assessment:
-    m = case.mode
+def _assess(loaded: LoadedMode, absorbers: Absorbers, frequency_hz=None) -> Assessment:
+    m = loaded.mode
     fs = m.frequency_hz if frequency_hz is None else frequency_hz
-    return assess(fs, m.modal_mass_kg, m.damping_ratio, absorbers, case.spectrum,
-                  case.duration_s, shape_factor=case.shape_factor)
+    return assess(fs, m.modal_mass_kg, m.damping_ratio, absorbers, loaded.spectrum,
+                  loaded.duration_s, shape_factor=loaded.shape_factor)
 
 
-def _stroke_m2(case: LoadCase, absorbers: Absorbers, frequency_hz=None) -> np.ndarray:
+def _stroke_m2(loaded: LoadedMode, absorbers: Absorbers, frequency_hz=None) -> np.ndarray:
     """Second spectral moment of the (single) absorber coordinate [m^2 Hz^2]."""
-    m = case.mode
+    m = loaded.mode
     fs = m.frequency_hz if frequency_hz is None else frequency_hz
-    r = spectral_response(fs, m.modal_mass_kg, m.damping_ratio, absorbers, case.spectrum)
+    r = spectral_response(fs, m.modal_mass_kg, m.damping_ratio, absorbers, loaded.spectrum)
     return r.stroke.m2[..., 0]

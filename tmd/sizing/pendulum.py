@@ -15,7 +15,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from tmd.dampers.pendulum import PendulumSettings, pendulum_length_m, swing_angle_rad
-from tmd.design import LoadCase, Sizing, TmdDesign, least_mass
+from tmd.design import LoadedMode, Sizing, TmdDesign, least_mass
 
 
 @dataclass(frozen=True)
@@ -29,7 +29,7 @@ class PendulumDesign:
     peak_swing_angle_rad: float
 
 
-def size_pendulum(case: LoadCase, target_peak_m_s2: float, *, max_mass_ratio: float,
+def size_pendulum(loaded: LoadedMode, target_peak_m_s2: float, *, max_mass_ratio: float,
                   max_stroke_m: float | None = None,
                   settings: PendulumSettings = PendulumSettings()) -> tuple[Sizing,
                                                                              PendulumDesign | None]:
@@ -37,7 +37,7 @@ def size_pendulum(case: LoadCase, target_peak_m_s2: float, *, max_mass_ratio: fl
 
     Parameters
     ----------
-    case : LoadCase
+    loaded : LoadedMode
     target_peak_m_s2 : float
         Peak acceleration target [m/s^2].
     max_mass_ratio : float
@@ -56,7 +56,7 @@ def size_pendulum(case: LoadCase, target_peak_m_s2: float, *, max_mass_ratio: fl
     -----
     L = g / (2 pi f_d)^2, stage length L / n, theta = asin(u_peak / L).
     """
-    sizing = least_mass(case, target_peak_m_s2, max_mass_ratio=max_mass_ratio,
+    sizing = least_mass(loaded, target_peak_m_s2, max_mass_ratio=max_mass_ratio,
                         max_stroke_m=max_stroke_m)
     if sizing.design is None:
         return sizing, None

@@ -27,7 +27,7 @@ from tmd.dampers.sloshing import (
     tank_length_m,
     wall_elevation_per_displacement,
 )
-from tmd.design import LoadCase
+from tmd.design import LoadedMode
 from tmd.sizing.liquid_column import CoupledSizing, _stroke_m2, least_coupled_mass
 
 
@@ -63,13 +63,13 @@ class TankDesign:
                          [self.equivalent_damping_ratio], [self.coupling])
 
 
-def size_sloshing_tanks(case: LoadCase, target_peak_m_s2: float, *, max_mass_ratio: float,
+def size_sloshing_tanks(loaded: LoadedMode, target_peak_m_s2: float, *, max_mass_ratio: float,
                         settings: TankSettings = TankSettings()) -> TankDesign:
     """Least water mass of screened rectangular tanks meeting a peak-acceleration target.
 
     Parameters
     ----------
-    case : LoadCase
+    loaded : LoadedMode
     target_peak_m_s2 : float
         Peak acceleration target [m/s^2].
     max_mass_ratio : float
@@ -95,13 +95,13 @@ def size_sloshing_tanks(case: LoadCase, target_peak_m_s2: float, *, max_mass_rat
     limit = None
     if settings.freeboard_m is not None:
         limit = settings.freeboard_m * beta / wall_elevation_per_displacement(ratio)
-    sizing = least_coupled_mass(case, target_peak_m_s2, beta, max_mass_ratio=max_mass_ratio,
+    sizing = least_coupled_mass(loaded, target_peak_m_s2, beta, max_mass_ratio=max_mass_ratio,
                                 max_coordinate_m=limit)
-    return _tank_design(case, sizing, settings, fraction)
+    return _tank_design(loaded, sizing, settings, fraction)
 
 
-def _tank_design(case, sizing: CoupledSizing, settings: TankSettings, fraction) -> TankDesign:
-    mode, ratio, beta = case.mode, settings.depth_ratio, sizing.coupling
+def _tank_design(loaded, sizing: CoupledSizing, settings: TankSettings, fraction) -> TankDesign:
+    mode, ratio, beta = loaded.mode, settings.depth_ratio, sizing.coupling
     length = float(tank_length_m(sizing.frequency_hz, ratio))
     depth = ratio * length
     water = sizing.mass_ratio * mode.modal_mass_kg
@@ -110,8 +110,8 @@ def _tank_design(case, sizing: CoupledSizing, settings: TankSettings, fraction) 
     width = total_width / count
     floor = float(intrinsic_damping_ratio(depth, width, sizing.frequency_hz,
                                           settings.kinematic_viscosity_m2_s))
-    a = case.assess(sizing.absorbers(mode))
-    sigma_rv = TWO_PI * float(np.sqrt(_stroke_m2(case, sizing.absorbers(mode))))
+    a = loaded.assess(sizing.absorbers(mode))
+    sigma_rv = TWO_PI * float(np.sqrt(_stroke_m2(loaded, sizing.absorbers(mode))))
     # zeta = floor + gain_r sigma_r'; the screens supply what the floor does not.
     screen_zeta = max(sizing.damping_ratio - floor, 0.0)
     gain_r = screen_zeta / sigma_rv

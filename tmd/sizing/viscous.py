@@ -34,7 +34,7 @@ import numpy as np
 from scipy.optimize import brentq
 
 from tmd.dampers.absorber import Absorbers
-from tmd.design import LoadCase
+from tmd.design import LoadedMode
 from tmd.peak import davenport_peak_factor
 from tmd.performance import assess
 from tmd.response import spectral_response
@@ -45,7 +45,7 @@ MAX_DAMPING_RATIO = 0.5
 
 @dataclass(frozen=True)
 class ViscousSettings:
-    """The installation of the dampers (case keys under [options]).
+    """The installation of the dampers (loaded keys under [options]).
 
     Parameters
     ----------
@@ -86,14 +86,14 @@ class ViscousDesign:
     message: str
 
 
-def size_added_damping(case: LoadCase, target_peak_m_s2: float, *,
+def size_added_damping(loaded: LoadedMode, target_peak_m_s2: float, *,
                        settings: ViscousSettings = ViscousSettings(),
                        max_damping_ratio: float = MAX_DAMPING_RATIO) -> ViscousDesign:
     """Supplemental modal damping that meets a peak-acceleration target.
 
     Parameters
     ----------
-    case : LoadCase
+    loaded : LoadedMode
     target_peak_m_s2 : float
         Peak acceleration target at the evaluation height [m/s^2].
     settings : ViscousSettings
@@ -112,10 +112,10 @@ def size_added_damping(case: LoadCase, target_peak_m_s2: float, *,
     factor with nu_v = sqrt(m4 / m2) of the displacement spectrum; the force
     per damper is c_d phi_d v_peak and the total modal force c_add v_peak.
     """
-    m = case.mode
+    m = loaded.mode
 
     def peak(zeta):
-        return float(_assess_damped(case, zeta).peak_acceleration_m_s2)
+        return float(_assess_damped(loaded, zeta).peak_acceleration_m_s2)
 
     zeta_s = m.damping_ratio
     if peak(zeta_s) <= target_peak_m_s2:
@@ -130,17 +130,17 @@ def size_added_damping(case: LoadCase, target_peak_m_s2: float, *,
         met = True
         message = (f"a total modal damping ratio of {total:.4g} (added {total - zeta_s:.4g}) "
                    f"meets the target {target_peak_m_s2:.4g} m/s^2")
-    return _design(case, total, settings, met, message)
+    return _design(loaded, total, settings, met, message)
 
 
-def _design(case, total, settings, met, message):
-    m = case.mode
+def _design(loaded, total, settings, met, message):
+    m = loaded.mode
     added = total - m.damping_ratio
     phi, n = settings.deformation_per_modal_displacement, settings.damper_count
     c_add = 2.0 * added * m.modal_mass_kg * TWO_PI * m.frequency_hz
     c_d = float(damper_constant_n_s_per_m(added, m.frequency_hz, m.modal_mass_kg, phi, n))
-    a = _assess_damped(case, total)
-    v_peak = peak_velocity_m_s(case, total)
+    a = _assess_damped(loaded, total)
+    v_peak = peak_velocity_m_s(loaded, total)
     return ViscousDesign(
         total_damping_ratio=float(total), added_damping_ratio=float(added),
         modal_damping_n_s_per_m=float(c_add), damper_constant_n_s_per_m=c_d, damper_count=n,
@@ -154,16 +154,16 @@ def _design(case, total, settings, met, message):
         message=message)
 
 
-def _assess_damped(case: LoadCase, damping_ratio, frequency_hz=None):
-    m = case.mode
+def _assess_damped(loaded: LoadedMode, damping_ratio, frequency_hz=None):
+    m = loaded.mode
     fs = m.frequency_hz if frequency_hz is None else frequency_hz
     zeta = np.asarray(damping_ratio, float)
     return assess(fs, m.modal_mass_kg, zeta, Absorbers.none(np.broadcast_shapes(
-        zeta.shape, np.shape(fs))), case.spectrum, case.duration_s,
-        shape_factor=case.shape_factor)
+        zeta.shape, np.shape(fs))), loaded.spectrum, loaded.duration_s,
+        shape_factor=loaded.shape_factor)
 
 
-def peak_acceleration_with_dashpot(case: LoadCase, added_damping_ratio: float, frequency_scale):
+def peak_acceleration_with_dashpot(loaded: LoadedMode, added_damping_ratio: float, frequency_scale):
     """Peak acceleration [m/s^2] with the added dashpot kept as the structure's frequency moves.
 
     Notes
@@ -172,11 +172,11 @@ def peak_acceleration_with_dashpot(case: LoadCase, added_damping_ratio: float, f
     its damping ratio becomes zeta_add / s.
     """
     s = np.asarray(frequency_scale, float)
-    zeta = case.mode.damping_ratio + added_damping_ratio / s
-    return _assess_damped(case, zeta, s * case.mode.frequency_hz).peak_acceleration_m_s2
+    zeta = loaded.mode.damping_ratio + added_damping_ratio / s
+    return _assess_damped(loaded, zeta, s * loaded.mode.frequency_hz).peak_acceleration_m_s2
 
 
-def velocity_statistics(case: LoadCase, damping_ratio: float) -> tuple[float, float]:
+def velocity_statistics(loaded: LoadedMode, damping_ratio: float) -> tuple[float, float]:
     """Rms modal velocity [m/s] and its up-crossing rate [Hz] of the damped bare mode.
 
     Notes
@@ -185,23 +185,23 @@ def velocity_statistics(case: LoadCase, damping_ratio: float) -> tuple[float, fl
     [m^2 Hz^2]; the engine's acceleration variance is (2 pi)^4 m4_x, so
     nu_v = sqrt(m4_x / m2_x).
     """
-    m = case.mode
+    m = loaded.mode
     r = spectral_response(m.frequency_hz, m.modal_mass_kg, damping_ratio, Absorbers.none(),
-                          case.spectrum)
+                          loaded.spectrum)
     m2 = float(r.displacement.m2)
     m4 = float(r.acceleration.m0) / TWO_PI**4
     return TWO_PI * math.sqrt(m2), math.sqrt(m4 / m2)
 
 
-def peak_velocity_m_s(case: LoadCase, damping_ratio: float) -> float:
+def peak_velocity_m_s(loaded: LoadedMode, damping_ratio: float) -> float:
     """Expected peak modal velocity at the damper level [m/s]: g(nu_v, T) sigma_v.
 
     Notes
     -----
     Davenport's (1964) peak factor on :func:`velocity_statistics`.
     """
-    sigma_v, nu_v = velocity_statistics(case, damping_ratio)
-    return float(davenport_peak_factor(nu_v, case.duration_s)) * sigma_v
+    sigma_v, nu_v = velocity_statistics(loaded, damping_ratio)
+    return float(davenport_peak_factor(nu_v, loaded.duration_s)) * sigma_v
 
 
 def damper_constant_n_s_per_m(added_damping_ratio, frequency_hz, modal_mass_kg,
