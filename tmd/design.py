@@ -163,7 +163,8 @@ class _TuningProblem:
         pts = central_difference_points(x)
         m = self.loaded.mode
         a = self.loaded.assess(single_tmd(m.frequency_hz, m.modal_mass_kg, self.mu, pts[:, 0],
-                                        np.exp(pts[:, 1])))
+                                          np.exp(pts[:, 1])),
+                               responses=("acceleration", "stroke", self.objective))
         value = np.log(self._measure(a))
         stroke = a.peak_stroke_m[:, 0]
         self._x = x.copy()  # the optimiser may reuse and mutate its array

@@ -50,6 +50,13 @@ def _legendre(n: int) -> tuple[np.ndarray, np.ndarray]:
     return leggauss(n)
 
 
+@lru_cache(maxsize=16)
+def _unit_nodes(n: int) -> tuple[np.ndarray, np.ndarray]:
+    """Gauss-Legendre nodes t in (0, 1) and weights summing to 1."""
+    x, wx = _legendre(n)
+    return 0.5 * (x + 1.0), 0.5 * wx
+
+
 def _linear_panel(lo, hi, n):
     x, wx = _legendre(n)
     half = 0.5 * (hi - lo)[..., None]
@@ -138,14 +145,17 @@ def pole_grid(centre_hz, half_width_hz, f_min_hz=0.0, f_max_hz=np.inf, *, breakp
     breakpoints_hz : sequence of float
         Frequencies where the load is not smooth (see
         :func:`sharp_breakpoints`) [Hz]; every panel is split there.
-    nodes_per_pole, nodes_per_tail_panel : int
-        Gauss-Legendre nodes per pole panel and per tail panel.
+    nodes_per_pole : int
+        Gauss-Legendre nodes per pole panel.
+    nodes_per_tail_panel : int
+        Gauss-Legendre nodes per tail panel.
 
     Returns
     -------
     frequency_hz, weight_hz : arrays, shape (..., F)
         sum(weight * g(frequency)) approximates the integral of g over the
-        range. Nodes outside a clipped range carry zero weight.
+        range, F = P nodes_per_pole + 8 nodes_per_tail_panel. Nodes outside
+        a clipped range carry zero weight.
 
     Notes
     -----
@@ -153,6 +163,9 @@ def pole_grid(centre_hz, half_width_hz, f_min_hz=0.0, f_max_hz=np.inf, *, breakp
     each boundary placed where the two Lorentzians are equal,
     f = (f_k h_{k+1} + f_{k+1} h_k) / (h_k + h_{k+1}). The lowest panel starts
     at f_1 / 2 and the highest ends at 2 f_P; the tails take over there.
+    Every panel of one kind is built by one broadcast operation over
+    (designs, panels, nodes), so the cost does not grow with a Python loop
+    over the poles.
 
     With breakpoints, every panel that holds one is cut there; each piece
     keeps its panel's map (the sinh map of its pole, or the log or
@@ -160,47 +173,87 @@ def pole_grid(centre_hz, half_width_hz, f_min_hz=0.0, f_max_hz=np.inf, *, breakp
     a feature narrower than the node spacing is integrated on panels of
     its own.
     """
-    order = np.argsort(centre_hz, axis=-1)
-    c = np.take_along_axis(np.asarray(centre_hz, float), order, axis=-1)
-    h = np.take_along_axis(np.asarray(half_width_hz, float), order, axis=-1)
+    c = np.asarray(centre_hz, float)
+    h = np.asarray(half_width_hz, float)
+    if c.shape != h.shape:
+        c, h = np.broadcast_arrays(c, h)
+    if c.shape[-1] > 1:
+        order = np.argsort(c, axis=-1)
+        flat = order.reshape(-1, order.shape[-1])
+        rows = np.arange(flat.shape[0])[:, None]
+        c = c.reshape(flat.shape)[rows, flat].reshape(order.shape)
+        h = h.reshape(flat.shape)[rows, flat].reshape(order.shape)
     inner = (c[..., :-1] * h[..., 1:] + c[..., 1:] * h[..., :-1]) / (h[..., :-1] + h[..., 1:])
     edges = np.concatenate([0.5 * c[..., :1], inner, 2.0 * c[..., -1:]], axis=-1)
-    edges = np.clip(edges, f_min_hz, f_max_hz)
-
-    cuts = np.asarray(breakpoints_hz, float).ravel()
-    cuts = np.unique(cuts[(cuts > f_min_hz) & (cuts < f_max_hz)])
-    if cuts.size:
-        return _split_grid(c, h, edges, f_min_hz, f_max_hz, cuts, nodes_per_pole)
-    parts = []
-    for k in range(c.shape[-1]):
-        parts.append(_pole_panel(c[..., k], h[..., k], edges[..., k], edges[..., k + 1],
-                                 nodes_per_pole))
-    parts += _lower_tail(edges[..., 0], f_min_hz, nodes_per_tail_panel)
-    parts += _upper_tail(edges[..., -1], f_max_hz, nodes_per_tail_panel)
-    frequency = np.concatenate([p[0] for p in parts], axis=-1)
-    weight = np.concatenate([p[1] for p in parts], axis=-1)
-    return frequency, weight
+    edges = np.minimum(np.maximum(edges, f_min_hz), f_max_hz)
+    if len(breakpoints_hz):
+        cuts = np.asarray(breakpoints_hz, float).ravel()
+        cuts = np.unique(cuts[(cuts > f_min_hz) & (cuts < f_max_hz)])
+        if cuts.size:
+            return _split_grid(c, h, edges, f_min_hz, f_max_hz, cuts, nodes_per_pole)
+    f_pole, w_pole = _pole_panels(c, h, edges, nodes_per_pole)
+    f_tail, w_tail = _tail_panels(edges[..., 0], edges[..., -1], f_min_hz, f_max_hz,
+                                  nodes_per_tail_panel)
+    return (np.concatenate([f_pole, f_tail], axis=-1),
+            np.concatenate([w_pole, w_tail], axis=-1))
 
 
-def _lower_tail(edge, f_min, n):
-    """[f_min, edge]: log panels down to edge / TAIL_REACH, then one linear panel."""
-    far = np.maximum(edge / TAIL_REACH, f_min)
-    cuts = far[..., None] * (edge / far)[..., None] ** (np.arange(TAIL_PANELS + 1) / TAIL_PANELS)
-    parts = [_log_panel(cuts[..., i], cuts[..., i + 1], n) for i in range(TAIL_PANELS)]
-    parts.append(_linear_panel(np.full_like(far, f_min), far, n))
-    return parts
+def _pole_panels(centre, half_width, edges, n):
+    """Gauss-Legendre in u on each pole's panel with f = centre + half_width sinh(u)."""
+    t, wt = _unit_nodes(n)
+    u_lo = np.arcsinh((edges[..., :-1] - centre) / half_width)
+    u_hi = np.arcsinh((edges[..., 1:] - centre) / half_width)
+    span = (u_hi - u_lo)[..., None]
+    u = u_lo[..., None] + span * t
+    # sinh and cosh from one exponential (u is bounded by the panel ends).
+    grow = np.exp(u, out=u)
+    shrink = np.reciprocal(grow)
+    f = grow - shrink
+    f *= 0.5 * half_width[..., None]
+    f += centre[..., None]
+    grow += shrink
+    w = np.multiply(grow, (0.5 * half_width[..., None] * span) * wt, out=grow)
+    shape = f.shape[:-2] + (-1,)
+    return f.reshape(shape), w.reshape(shape)
 
 
-def _upper_tail(edge, f_max, n):
-    """[edge, f_max]: log panels up to edge * TAIL_REACH, then the remainder."""
-    far = np.minimum(edge * TAIL_REACH, f_max)
-    cuts = edge[..., None] * (far / edge)[..., None] ** (np.arange(TAIL_PANELS + 1) / TAIL_PANELS)
-    parts = [_log_panel(cuts[..., i], cuts[..., i + 1], n) for i in range(TAIL_PANELS)]
-    if np.isinf(f_max):
-        parts.append(_reciprocal_panel(far, n))
-    else:
-        parts.append(_log_panel(far, np.full_like(far, f_max), n))
-    return parts
+_ONES = np.ones(TAIL_PANELS)
+
+
+def _tail_panels(low_edge, high_edge, f_min, f_max, n):
+    """Both tails: log panels, then a closing panel at each end.
+
+    Below the lowest pole panel: TAIL_PANELS log panels down to
+    edge / TAIL_REACH (or f_min), then one linear panel to f_min. Above the
+    highest: TAIL_PANELS log panels up to edge * TAIL_REACH (or f_max), then
+    the remainder, by the reciprocal map f = f_0 / t for an unbounded range
+    (its nodes never reach t = 0) or one more log panel.
+    """
+    t, wt = _unit_nodes(n)
+    far_lo = np.maximum(low_edge / TAIL_REACH, f_min)
+    far_hi = np.minimum(high_edge * TAIL_REACH, f_max)
+    steps = np.arange(TAIL_PANELS) / TAIL_PANELS
+    step_lo = np.log(low_edge / far_lo)[..., None] / TAIL_PANELS
+    step_hi = np.log(far_hi / high_edge)[..., None] / TAIL_PANELS
+    log_start = [far_lo[..., None] * np.exp(TAIL_PANELS * step_lo * steps),
+                 high_edge[..., None] * np.exp(TAIL_PANELS * step_hi * steps)]
+    log_span = [step_lo * _ONES, step_hi * _ONES]
+    if np.isfinite(f_max):
+        log_start.append(far_hi[..., None])
+        log_span.append(np.log(f_max / far_hi)[..., None])
+    start = np.concatenate(log_start, axis=-1)[..., None]
+    span = np.concatenate(log_span, axis=-1)[..., None]
+    f_log = start * np.exp(span * t)
+    w_log = f_log * span * wt
+    shape = f_log.shape[:-2] + (-1,)
+    # Linear panel [f_min, far_lo].
+    width = (far_lo - f_min)[..., None]
+    f_parts = [f_log.reshape(shape), f_min + width * t]
+    w_parts = [w_log.reshape(shape), width * wt]
+    if not np.isfinite(f_max):
+        f_parts.append(far_hi[..., None] / t)
+        w_parts.append(far_hi[..., None] / t**2 * wt)
+    return np.concatenate(f_parts, axis=-1), np.concatenate(w_parts, axis=-1)
 
 
 def _tail_edges(edge, f_min, f_max):

@@ -16,7 +16,7 @@ from scipy.optimize.elementwise import find_root
 
 from tmd.dampers.absorber import Absorbers
 from tmd.peak import davenport_peak_factor, peak_factor_is_held
-from tmd.response import TOP_DECADE_WARNING, Moments, spectral_response
+from tmd.response import RESPONSES, TOP_DECADE_WARNING, Moments, spectral_response
 from tmd.spectra import ForceSpectrum
 
 
@@ -30,7 +30,8 @@ class Assessment:
 
     Accelerations are at the evaluation height [m/s^2]; displacement at the
     damper level [m]; strokes per absorber (last axis) [m]; force is the
-    total the absorbers put on the structure [N].
+    total the absorbers put on the structure [N]. The fields of a response
+    left out of ``responses`` (see :func:`assess`) are None.
     """
 
     sigma_displacement_m: np.ndarray
@@ -56,7 +57,7 @@ def _peak(moments: Moments, duration_s):
 
 def assess(frequency_hz, modal_mass_kg, damping_ratio, absorbers: Absorbers,
            spectrum: ForceSpectrum, duration_s: float, *, shape_factor: float = 1.0,
-           warn: bool = False) -> Assessment:
+           warn: bool = False, responses=RESPONSES) -> Assessment:
     """Rms and peak responses of a batch of designs.
 
     Parameters
@@ -76,12 +77,22 @@ def assess(frequency_hz, modal_mass_kg, damping_ratio, absorbers: Absorbers,
     warn : bool
         Emit :class:`UpperEdgeWarning` when more than 1% of the
         acceleration's m0 or m2 comes from the top decade of the load's range.
+    responses : collection of str
+        Which of "displacement", "acceleration", "stroke", "force" to compute
+        (the acceleration always is); the engine skips the others and their
+        fields are None. Default: all.
+
+    Returns
+    -------
+    Assessment
     """
-    r = spectral_response(frequency_hz, modal_mass_kg, damping_ratio, absorbers, spectrum)
+    wanted = frozenset(responses) | {"acceleration"}
+    r = spectral_response(frequency_hz, modal_mass_kg, damping_ratio, absorbers, spectrum,
+                          responses=wanted)
     peak_a, nu_a = _peak(r.acceleration, duration_s)
-    peak_r, _ = _peak(r.stroke, duration_s)
-    peak_f, _ = _peak(r.force, duration_s)
-    peak_x, _ = _peak(r.displacement, duration_s)
+    peak_r = _peak(r.stroke, duration_s)[0] if r.stroke is not None else None
+    peak_f = _peak(r.force, duration_s)[0] if r.force is not None else None
+    peak_x = _peak(r.displacement, duration_s)[0] if r.displacement is not None else None
     share0, share2 = r.acceleration_top_decade
     if warn and np.any(np.maximum(share0, share2) > TOP_DECADE_WARNING):
         warnings.warn(
@@ -91,15 +102,15 @@ def assess(frequency_hz, modal_mass_kg, damping_ratio, absorbers: Absorbers,
             "depend on where the spectrum is cut off",
             UpperEdgeWarning, stacklevel=2)
     return Assessment(
-        sigma_displacement_m=r.displacement.sigma,
+        sigma_displacement_m=r.displacement.sigma if r.displacement is not None else None,
         peak_displacement_m=peak_x,
         sigma_acceleration_m_s2=shape_factor * r.acceleration.sigma,
         peak_acceleration_m_s2=shape_factor * peak_a,
         peak_factor=davenport_peak_factor(nu_a, duration_s),
         upcrossing_hz=nu_a,
-        sigma_stroke_m=r.stroke.sigma,
+        sigma_stroke_m=r.stroke.sigma if r.stroke is not None else None,
         peak_stroke_m=peak_r,
-        sigma_force_n=r.force.sigma,
+        sigma_force_n=r.force.sigma if r.force is not None else None,
         peak_damper_force_n=peak_f,
         top_decade_share_m0=share0,
         top_decade_share_m2=share2,
@@ -111,7 +122,8 @@ def bare_sigma_acceleration(frequency_hz, modal_mass_kg, damping_ratio, spectrum
     """Rms acceleration [m/s^2] of the bare mode (no absorber) at the damper level."""
     zeta = np.asarray(damping_ratio, float)
     none = Absorbers.none(np.broadcast_shapes(zeta.shape, np.shape(frequency_hz)))
-    return spectral_response(frequency_hz, modal_mass_kg, zeta, none, spectrum).acceleration.sigma
+    return spectral_response(frequency_hz, modal_mass_kg, zeta, none, spectrum,
+                             responses=("acceleration",)).acceleration.sigma
 
 
 def effective_damping_ratio(frequency_hz, modal_mass_kg, sigma_acceleration_m_s2, spectrum,
