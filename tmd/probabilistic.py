@@ -44,7 +44,6 @@ from enum import StrEnum
 
 import numpy as np
 from numpy.polynomial.legendre import leggauss
-from scipy.optimize import brentq
 from scipy.optimize.elementwise import find_root
 from scipy.special import ndtr
 
@@ -318,8 +317,9 @@ def least_mass_for_probability(loaded: LoadedMode, target_peak_m_s2: float,
     -----
     At each mass ratio the TMD has the nominal-optimal tuning
     (:func:`tmd.design.tune` on the nominal structure, with the stroke
-    limit); only the mass is searched, by Brent's method
-    (``scipy.optimize.brentq``) on P(mu) - P_acceptable with P by
+    limit); only the mass is searched, by a bracketing root search
+    (Chandrupatla's, ``scipy.optimize.elementwise.find_root``, returning
+    the bracket end that meets it) on P(mu) - P_acceptable with P by
     :func:`exceedance_probability`. Re-optimising the tuning for the
     probability would need less mass; this answers "how much more mass does
     the nominal sizing need".
@@ -348,8 +348,15 @@ def least_mass_for_probability(loaded: LoadedMode, target_peak_m_s2: float,
                                    "mass", (
             f"even the largest mass ratio allowed, {max_mass_ratio:g}, exceeds the target with "
             f"probability {p_top:.3g} > {accept:.3g}"))
-    mu = brentq(lambda m: probability(damper_at(m)) - accept, min_mass_ratio, max_mass_ratio,
-                xtol=1e-10, rtol=1e-8, maxiter=100)
+    def gap(mu):
+        return np.reshape([probability(damper_at(float(m))) - accept for m in np.ravel(mu)],
+                          np.shape(mu))
+
+    # Chandrupatla's bracketing root; the answer is the bracket end that meets
+    # the acceptable probability, so that the verdict below holds by construction.
+    res = find_root(gap, (min_mass_ratio, max_mass_ratio),
+                    tolerances={"xatol": 1e-10, "xrtol": 1e-8})
+    mu = min(float(x) for x, g in zip(res.bracket, res.f_bracket, strict=True) if g <= 0)
     damper = damper_at(mu)
     p = probability(damper)
     return ProbabilisticSizing(evaluate_tmd(loaded, damper, target_peak_m_s2), p, True,
