@@ -2,9 +2,11 @@
 
 import csv
 import io
+import re
 
 import numpy as np
 import pytest
+from matplotlib.text import Text
 from rich.console import Console
 
 from tmd.jobs import loaded_mode_of
@@ -14,6 +16,7 @@ from tmd.report.comfort import comfort_limits, melbourne_palmer_peak_acceleratio
 from tmd.report.progress import progress_bar, quiet_step
 
 G = 9.80665
+NUMBER_TICK = re.compile(r"^-?[0-9.]+(e-?[0-9]+)?$")
 
 
 def xy(line):
@@ -127,6 +130,11 @@ def test_mass_ratio_figure(case_report):
     np.testing.assert_array_equal(y, study.peak_acceleration_m_s2)
     twin = [a for a in ax.figure.axes if a is not ax and a.lines][0]
     np.testing.assert_array_equal(xy(twin.lines[0])[1], study.peak_stroke_m)
+    # A stroke held at its limit is drawn inside the frame, clear of its top edge
+    # (a curve on the frame is hidden by it: common practice of chart making).
+    stroke_top = max(study.peak_stroke_m.max(), case.damper.max_stroke_m or 0)
+    assert twin.get_ylim()[1] >= 1.05 * stroke_top
+    assert ax.get_ylim()[1] >= 1.05 * study.peak_acceleration_m_s2.max()
     # At the chosen mass ratio the study re-tunes to the design's optimum; tol
     # is the SLSQP tolerance of the optimum value
     at = np.flatnonzero(grid == d["mass_ratio"])[0]
@@ -219,16 +227,90 @@ def test_comfort_data_against_published_formulas():
 
 def test_option_figure(full_report):
     _, results, _ = full_report
-    options = results["options"]
+    options = results["options"] + [{  # an option without added mass (viscous dampers)
+        "option": "viscous", "mass_ratio": None, "peak_acceleration_m_s2": 0.09,
+        "peak_acceleration_band_max_m_s2": 0.095}]
     mu = [o["mass_ratio"] for o in options]
     peak = [o["peak_acceleration_m_s2"] for o in options]
     worst = [o["peak_acceleration_band_max_m_s2"] for o in options]
-    ax = plots.plot_option_comparison([o["option"] for o in options], mu, peak, worst,
-                                      target_peak_m_s2=0.1)
-    np.testing.assert_array_equal(xy(ax.lines[0])[0], mu)
-    np.testing.assert_array_equal(xy(ax.lines[0])[1], peak)
-    np.testing.assert_array_equal(xy(ax.lines[1])[1], worst)
-    assert [t.get_text() for t in ax.texts] == [o["option"] for o in options]
+    names = [o["option"] for o in options]
+    ax = plots.plot_option_comparison(names, mu, peak, worst, target_peak_m_s2=0.1)
+    # one row per option, top to bottom in the given order, none left out
+    rows = xy(ax.lines[0])[1]
+    np.testing.assert_array_equal(xy(ax.lines[0])[0], peak)
+    np.testing.assert_array_equal(xy(ax.lines[1])[0], worst)
+    assert list(rows) == sorted(rows, reverse=True) and len(set(rows)) == len(options)
+    ax.figure.draw_without_rendering()
+    labels = [t.get_text() for t in ax.get_yticklabels()]
+    assert [label.split("\n")[0] for label in labels] == names
+    assert labels[-1].endswith("(no added mass)")
+    # each label states the added mass as % of M* (3 significant figures)
+    assert f"{100 * mu[0]:.3g} % of M*" in labels[0]
+    # every marker lies inside the frame, clear of its edges (not clipped)
+    x_lo, x_hi = ax.get_xlim()
+    assert max(worst + peak + [0.1]) < x_hi and x_lo <= 0
+    y_lo, y_hi = ax.get_ylim()
+    assert y_lo < rows.min() - 0.3 and rows.max() + 0.3 < y_hi
+
+
+@pytest.mark.parametrize("figure", ["force_spectrum", "frequency_response", "acceleration_psd",
+                                    "detuning_sweep", "comfort", "options"])
+def test_figures_have_fixed_layouts_plain_ticks_and_nothing_cut_off(full_report, figure):
+    """No layout engine at save time, no mathtext, and every label inside the canvas.
+
+    Whole labels inside the canvas and no '$' math in plain tick labels: common
+    practice for legible printed figures.
+    """
+    case, results, _ = full_report
+    load = load_case_of(case)
+    d = results["design"]
+    if figure == "force_spectrum":
+        f, s = series.force_spectrum_curve(load)
+        ax = plots.plot_force_spectrum(f, s, structure_frequency_hz=case.mode.frequency_hz,
+                                       wind_frequency_hz=f, wind_psd_m2_s2_per_hz=s / 1e6)
+    elif figure == "frequency_response":
+        h = series.acceleration_frequency_response(load, d)
+        ax = plots.plot_frequency_response(h.frequency_hz, h.bare, h.damped)
+    elif figure == "acceleration_psd":
+        p = series.acceleration_psd(load, d)
+        ax = plots.plot_acceleration_psd(p.frequency_hz, p.bare, p.damped, bare_sigma_m_s2=0.1,
+                                         bare_peak_m_s2=0.3, damped_sigma_m_s2=0.05,
+                                         damped_peak_m_s2=0.15)
+    elif figure == "detuning_sweep":
+        sw = series.sweep_from_results(results["sweep"])
+        ax = plots.plot_detuning_sweep(sw.structure_frequency_factor,
+                                       1.5 * sw.peak_acceleration_m_s2, sw.peak_acceleration_m_s2,
+                                       target_peak_m_s2=0.1, frequency_band=0.15)
+    elif figure == "comfort":
+        responses = series.comfort_responses(results, case.mode.frequency_hz)
+        shown, _ = series.matching_limits(comfort_limits(), responses)
+        ax = plots.plot_comfort_chart(shown, responses, target_peak_m_s2=0.1,
+                                      target_return_period_years=1.0)
+    else:
+        o = results["options"]
+        ax = plots.plot_option_comparison(
+            [r["option"] for r in o], [r["mass_ratio"] for r in o],
+            [r["peak_acceleration_m_s2"] for r in o],
+            [r["peak_acceleration_band_max_m_s2"] for r in o], target_peak_m_s2=0.1)
+    fig = ax.figure
+    assert fig.get_layout_engine() is None
+    fig.draw_without_rendering()  # lays out text as savefig does
+    for text in fig.findobj(Text):
+        assert "$" not in text.get_text(), (figure, text)
+    # everything drawn (ticks in view, labels, legend, title) lies on the canvas;
+    # 0.01 in of slack for anti-aliasing at the edge
+    drawn = fig.get_tightbbox()
+    width, height = fig.get_size_inches()
+    assert (drawn.x0 >= -0.01 and drawn.y0 >= -0.01 and drawn.x1 <= width + 0.01
+            and drawn.y1 <= height + 0.01), (figure, drawn, (width, height))
+    # log-axis labels are plain numbers, and some are shown on every log axis
+    for a in fig.axes:
+        for axis, scale in ((a.xaxis, a.get_xscale()), (a.yaxis, a.get_yscale())):
+            if scale == "log" and axis.get_visible():
+                shown = [t.get_text() for t in axis.get_ticklabels(which="both")
+                         if t.get_text()]
+                assert shown and all(
+                    NUMBER_TICK.match(t.replace("\u2212", "-")) for t in shown), shown
 
 
 def test_progress_is_quiet_off_terminal_and_reports_steps(case_report):

@@ -20,6 +20,7 @@ from tmd.report.comfort import comfort_limits
 from tmd.report.html import Callout, Figure, Section, document
 from tmd.report.progress import StepCallback, quiet_step
 from tmd.report.tables import (
+    DAMPER_LABELS,
     MILLI_G,
     Cell,
     Table,
@@ -53,6 +54,41 @@ CONVENTIONS = (
     "Numbers in tables are printed to 4 significant figures; each cell carries its results.json "
     "key and full value.",
 )
+
+
+def comfort_caption(shown, hidden, responses) -> str:
+    """What the comfort chart draws: which responses, which limits, which have no limit.
+
+    Parameters
+    ----------
+    shown, hidden : list of ComfortLimit
+        Shipped limits drawn (a response of their return period exists) and not drawn.
+    responses : list of ComfortResponse
+        The responses drawn, per return period.
+
+    Returns
+    -------
+    str
+    """
+    def period(p):
+        return "the design load (return period not stated)" if p is None else f"{p:g}-year"
+
+    periods = [r.return_period_years for r in responses]
+    limited = {c.return_period_years for c in shown}
+    text = ("Peak acceleration at the building frequency, bare (open markers) and with the "
+            "damper (filled), for " + ", ".join(period(p) for p in periods)
+            + " loads, beside the user's target.")
+    if shown:
+        text += " Comfort limits drawn: " + "; ".join(c.label for c in shown) + "."
+    unmatched = [p for p in periods if p not in limited]
+    if unmatched:
+        text += (" No shipped limit has the return period of the "
+                 + ", ".join(period(p) for p in unmatched)
+                 + " points: they are drawn for reference only, against no limit.")
+    if hidden:
+        text += (" Not drawn, for want of a response of their return period: "
+                 + "; ".join(c.label for c in hidden) + ".")
+    return text
 
 
 def render_report(case: Case, results: dict, *, dpi: int = 150,
@@ -239,11 +275,11 @@ class _Report:
                 "sizing", "Sizing outcome", r["sizing"], "sizing",
                 keys=("meets_target", "governed_by", "message"))))
         if design is None:
-            blocks.append(Callout("No damper is specified: the bare building meets the target."))
+            blocks.append(Callout(self._no_design_statement()))
         else:
             blocks.append(self._table(key_value_table(
                 "design", "Damper specification (translational TMD)", design, "design",
-                keys=DESIGN_REPORT_ORDER)))
+                keys=DESIGN_REPORT_ORDER, labels=DAMPER_LABELS)))
             band, source = self._band()
             blocks.append(self._table(retuning_table(design, band, source)))
             entries = r.get("by_return_period") or []
@@ -256,6 +292,23 @@ class _Report:
                     "supporting slab at long ones)", damped, "by_return_period")))
         blocks += self._response_figures()
         return Section("Damper specification", blocks)
+
+    def _no_design_statement(self) -> str:
+        """Why the results hold no design block, in the results' own words.
+
+        The report states no verdict of its own: a design job's ``sizing``
+        message says whether the bare building meets the target; a comparison
+        sizes each option in its own section.
+        """
+        sizing = self.results.get("sizing")
+        if sizing and sizing.get("message"):
+            return f"No damper is specified: {sizing['message']}."
+        if self.results.get("options"):
+            return ("This comparison specifies no single damper: each option is sized in the "
+                    "section 'Options', with its own verdict against the target. The figures "
+                    "below show the bare building and best-tuned TMDs over a range of mass "
+                    "ratios.")
+        return "These results hold no damper design."
 
     def _band(self) -> tuple[float, str]:
         robust = self.results.get("robust_design") or {}
@@ -309,12 +362,7 @@ class _Report:
         ax = plots.plot_comfort_chart(
             shown, responses, target_peak_m_s2=self.target,
             target_return_period_years=series.design_return_period(self.results))
-        caption = ("Peak acceleration at the building frequency, bare (open) and with the "
-                   "damper (filled), against published comfort limits of the same return "
-                   "period and the user's target.")
-        if hidden:
-            caption += (" Not drawn, for want of a response of their return period: "
-                        + "; ".join(c.label for c in hidden) + ".")
+        caption = comfort_caption(shown, hidden, responses)
         blocks = [self._figure("comfort", ax, caption),
                   "Comfort limits shipped with the tool: "
                   + "; ".join(f"{c.label} ({c.provenance})" for c in comfort_limits())
@@ -362,7 +410,7 @@ class _Report:
             k for k in ("frequency_band", "peak_acceleration_band_max_m_s2") if k in robust]
         rows = []
         for key in keys:
-            label, unit = label_and_unit(key)
+            label, unit = label_and_unit(key, labels=DAMPER_LABELS)
             nominal = Cell(design[key], f"design.{key}") if key in design else Cell("")
             rows.append([Cell(label), nominal, Cell(robust[key], f"robust_design.{key}"),
                          Cell(unit)])
@@ -415,5 +463,6 @@ class _Report:
         blocks = []
         if self.results.get("warnings"):
             blocks += ["Warnings raised while computing:", list(self.results["warnings"])]
-        blocks += ["Cautions:", list(self.results.get("cautions") or CAUTIONS)]
+        # the cautions exactly as results.json states them (one source: the job)
+        blocks += ["Cautions:", list(self.results["cautions"])]
         return Section("Warnings and cautions", blocks)

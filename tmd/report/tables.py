@@ -34,7 +34,7 @@ LABELS = {
     "upcrossing_hz": "up-crossing frequency",
     "mass_ratio": "mass ratio m_d / M*",
     "frequency_ratio": "frequency ratio f_d / f_s",
-    "damping_ratio": "damping ratio (of its own frequency)",
+    "damping_ratio": "damping ratio",
     "stiffness_n_per_m": "spring stiffness",
     "damping_n_s_per_m": "dashpot coefficient",
     "effective_damping_ratio": "effective damping ratio of the building",
@@ -42,6 +42,13 @@ LABELS = {
     "meets_target": "meets the target",
     "peak_acceleration_band_max_m_s2": "worst peak acceleration across the band",
     "structure_frequency_factor": "structure frequency factor",
+}
+# Labels of a damper's own block (design, robust design): its damping ratio is
+# referred to its own frequency, the building's to the building's.
+DAMPER_LABELS = {
+    "damping_ratio": "damper damping ratio ζ_d (referred to the damper frequency f_d)",
+    "frequency_hz": "damper frequency f_d",
+    "mass_kg": "damper mass m_d",
 }
 
 
@@ -106,16 +113,59 @@ def format_value(value, digits: int = SIGNIFICANT) -> str:
     return str(value)
 
 
-def label_and_unit(key: str, scale_unit: str | None = None) -> tuple[str, str]:
-    """Readable quantity name and unit of a results key (the unit from its suffix)."""
+def label_and_unit(key: str, scale_unit: str | None = None,
+                   labels: dict | None = None) -> tuple[str, str]:
+    """Readable quantity name and unit of a results key (the unit from its suffix).
+
+    Parameters
+    ----------
+    key : str
+        A results.json key, ending with its SI unit suffix (or dimensionless).
+    scale_unit : str, optional
+        The unit to print instead (for a scaled display, such as milli-g).
+    labels : dict, optional
+        Labels that take precedence over the general ones (a block's own wording).
+
+    Returns
+    -------
+    label, unit : str
+    """
     unit = ""
     stem = key
     for suffix, printed in UNIT_SUFFIXES:
         if key.endswith(suffix):
             unit, stem = printed, key[: -len(suffix)]
             break
-    label = LABELS.get(key, stem.replace("_", " "))
+    label = (labels or {}).get(key) or LABELS.get(key, stem.replace("_", " "))
     return label, scale_unit or unit
+
+
+def leaf_label(dotted: str, key: str, labels: dict | None = None) -> tuple[str, str]:
+    """Label and unit of a flattened key path, its parents named in front.
+
+    An item of a list of numbers is named by its list and position
+    ("wind · return periods, item 2"), not by the list's key twice.
+
+    Parameters
+    ----------
+    dotted : str
+        The key path below the table's block (``"wind.return_periods_years.1"``).
+    key : str
+        The leaf's key (for a list item: the list's key).
+    labels : dict, optional
+        Labels that take precedence over the general ones.
+
+    Returns
+    -------
+    label, unit : str
+    """
+    parts = dotted.split(".") if dotted else []
+    label, unit = label_and_unit(key, labels=labels)
+    if parts and parts[-1].isdigit() and len(parts) >= 2 and parts[-2] == key:
+        label = f"{label}, item {int(parts[-1]) + 1}"
+        parts = parts[:-1]
+    parent = path_label(".".join(parts[:-1]))
+    return (f"{parent} · {label}" if parent else label), unit
 
 
 def path_label(dotted: str) -> str:
@@ -147,20 +197,38 @@ def flatten(block: dict, path: str) -> list[tuple[str, str, object]]:
 
 
 def key_value_table(name: str, title: str, block: dict, path: str, *, keys=None,
-                    note: str = "", milli_g: bool = True) -> Table:
+                    note: str = "", milli_g: bool = True, labels: dict | None = None) -> Table:
     """Quantity / value / unit rows for the scalars of ``block`` (in ``keys`` order if given).
 
     Accelerations get a second row in milli-g when ``milli_g``.
+
+    Parameters
+    ----------
+    name, title : str
+        Table file name and heading.
+    block : dict
+        The results block (nested dicts and lists are flattened).
+    path : str
+        Key path of ``block`` in results.json.
+    keys : sequence of str, optional
+        Top-level keys to show, in this order (default: every scalar, flattened).
+    note : str
+        Text under the table.
+    milli_g : bool
+        Add a milli-g row under every acceleration [m/s^2].
+    labels : dict, optional
+        Labels that take precedence over the general ones.
+
+    Returns
+    -------
+    Table
     """
     rows = []
     items = flatten(block, path) if keys is None else [
         (f"{path}.{k}", k, block[k]) for k in keys if k in block]
     for key_path, key, value in items:
-        label, unit = label_and_unit(key)
-        shown_path = key_path[len(path) + 1:] if keys is None and path else ""
-        parent = shown_path.rsplit(".", 1)[0] if "." in shown_path else ""
-        if path_label(parent):
-            label = f"{path_label(parent)} · {label}"
+        shown_path = key_path[len(path) + 1:] if path else key_path
+        label, unit = leaf_label(shown_path, key, labels)
         rows.append([Cell(label), Cell(value, key_path), Cell(unit)])
         if milli_g and unit == "m/s²" and _is_number(value):
             rows.append([Cell(f"{label} (milli-g)"), Cell(value, key_path, MILLI_G),
@@ -241,15 +309,9 @@ def across_table(name: str, title: str, entries: list[dict], path: str, *, colum
         leaves += [p for p, _, _ in flatten(shown, "") if p not in leaves and p != column_key]
     rows = []
     for leaf in leaves:
-        stem, _, last = leaf.rpartition(".")
-        if last.isdigit():  # an item of a list of numbers: name it by its list and position
-            stem, _, last = stem.rpartition(".")
-            label, unit = label_and_unit(last)
-            label = f"{label} {int(leaf.rsplit('.', 1)[1]) + 1}"
-        else:
-            label, unit = label_and_unit(last)
-        if stem:
-            label = f"{path_label(stem)}: {label}"
+        parts = leaf.split(".")
+        key = parts[-2] if parts[-1].isdigit() and len(parts) >= 2 else parts[-1]
+        label, unit = leaf_label(leaf, key)
         cells = [Cell(label), Cell(unit)]
         for i, entry in enumerate(entries):
             value = _lookup(entry, leaf)
