@@ -17,10 +17,10 @@ from pathlib import Path
 from typing import Annotated
 
 import typer
-from rich.console import Console
 from rich.markup import escape
 from rich.table import Table
 
+from tmd import terminal
 from tmd.case import CaseError, read_case
 from tmd.constants import STANDARD_GRAVITY
 from tmd.dampers.tuned_mass import TunedMassDamper
@@ -38,8 +38,8 @@ from tmd.schema import CAUTIONS
 
 app = typer.Typer(add_completion=False, no_args_is_help=True,
                   help="Size passive dampers for a wind-excited building mode.")
-out_console = Console(width=None if Console().is_terminal else 110)
-err_console = Console(stderr=True, width=None if Console(stderr=True).is_terminal else 110)
+out_console = terminal.console()
+err_console = terminal.console(stderr=True)
 
 CaseArg = Annotated[Path, typer.Argument(help="Case file (TOML).", show_default=False)]
 
@@ -263,6 +263,8 @@ def evaluate(case: CaseArg,
         typer.echo(to_json({"design": result["design"]}), nl=False)
         return
     out_console.print(_summary(result))
+    line, colour = terminal.verdict_line(result)
+    out_console.print(f"[{colour}]{escape(line)}[/]", highlight=False)
     _print_notes(result)
 
 
@@ -330,24 +332,7 @@ def compare(case: CaseArg,
     """Size every enabled passive option on the case and compare them."""
     c, target = _case_and_output(case, out)
     result = compare_job(c)
-    table = Table(title=f"{result['case']['name']}: passive options "
-                        f"(band ±{100 * result['options_frequency_band']:g}%)")
-    for name in ("option", "mass", "% of M*", "peak acc.", "peak stroke/excursion",
-                 "peak force", "eff. damping", "worst in band", "meets"):
-        table.add_column(name, justify="right")
-    for row in result["options"]:
-        def num(key, fmt, scale=1.0, row=row):
-            v = row.get(key)
-            return "-" if v is None else fmt.format(v * scale)
-        table.add_row(row["option"], num("mass_kg", "{:,.1f} t", 1e-3),
-                      num("mass_ratio", "{:.2f}", 100.0), num("peak_acceleration_m_s2", "{:.4f}"),
-                      num("peak_stroke_m", "{:.3f} m"), num("peak_damper_force_n", "{:,.0f} kN",
-                                                            1e-3),
-                      num("effective_damping_ratio", "{:.4f}"),
-                      num("peak_acceleration_band_max_m_s2", "{:.4f}"),
-                      "yes" if row["meets_target"] else "no")
-    out_console.print(table)
-    out_console.print("accelerations in m/s² at the evaluation height", highlight=False)
+    out_console.print(terminal.options_table(result))
     _print_notes(result)
     _write(c, result, target)
 
@@ -372,15 +357,7 @@ def sweep(case: CaseArg,
     if json_output:
         typer.echo(to_json(result), nl=False)
         return
-    table = Table(title=f"{result['case']['name']}: structure frequency sweep")
-    for name in ("frequency factor", "bare peak acc.", "design peak acc.", "peak stroke",
-                 "eff. damping"):
-        table.add_column(name, justify="right")
-    for bare, row in zip(result["sweep_bare"], result["sweep"], strict=True):
-        table.add_row(f"{row['structure_frequency_factor']:.3f}",
-                      f"{bare['peak_acceleration_m_s2']:.4f}",
-                      f"{row['peak_acceleration_m_s2']:.4f}", f"{row['peak_stroke_m']:.3f} m",
-                      f"{row['effective_damping_ratio']:.4f}")
+    table = terminal.sweep_table(result)
     out_console.print(table)
     out_console.print(f"worst peak acceleration in the band ±{100 * result['frequency_band']:g}%:"
                       f" {_accel(result['peak_acceleration_band_max_m_s2'])}", highlight=False)
