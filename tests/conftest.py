@@ -1,5 +1,28 @@
 """Shared fixtures. Matplotlib runs headless (Agg) in every test."""
 
+import json
+import warnings
+from pathlib import Path
+
 import matplotlib
+import pytest
 
 matplotlib.use("Agg")
+
+DEMO_FORCE_CASE = Path(__file__).resolve().parents[1] / "cases" / "harbourline_residences.toml"
+
+
+@pytest.fixture(scope="session")
+def demo_compare():
+    """(case, results) of ``compare`` on the force-spectrum demo, as results.json holds them."""
+    from tmd.case import read_case
+    from tmd.jobs import compare_job
+    from tmd.outputs import to_json
+    from tmd.performance import UpperEdgeWarning
+
+    case = read_case(DEMO_FORCE_CASE)
+    with warnings.catch_warnings():
+        # the demo spectrum's upper-edge note is already in results["warnings"]
+        warnings.simplefilter("ignore", UpperEdgeWarning)
+        results = compare_job(case)
+    return case, json.loads(to_json(results))

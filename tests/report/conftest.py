@@ -9,7 +9,7 @@ import pytest
 from tests.consistency import assert_consistent_results
 from tests.report.synthetic import DEMO_CASE, full_results
 from tmd.case import read_case
-from tmd.jobs import compare_job, design_job
+from tmd.jobs import design_job
 from tmd.outputs import to_json
 from tmd.performance import UpperEdgeWarning
 from tmd.report import render_report
@@ -42,11 +42,7 @@ def full_report():
 
 
 @pytest.fixture(scope="session")
-def compare_report():
+def compare_report(demo_compare):
     """The comparison of every option on the force-spectrum demo, with its report."""
-    case = read_case(DEMO_CASE)
-    with warnings.catch_warnings():
-        # the demo spectrum's upper-edge note is already in results["warnings"]
-        warnings.simplefilter("ignore", UpperEdgeWarning)
-        results = compare_job(case)
-    return case, as_written(results), render_report(case, results, dpi=TEST_DPI)
+    case, results = demo_compare
+    return case, results, render_report(case, results, dpi=TEST_DPI)

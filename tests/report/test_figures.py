@@ -262,7 +262,7 @@ def test_figures_have_fixed_layouts_plain_ticks_and_nothing_cut_off(full_report,
     practice for legible printed figures.
     """
     case, results, _ = full_report
-    load = load_case_of(case)
+    load = loaded_mode_of(case)
     d = results["design"]
     if figure == "force_spectrum":
         f, s = series.force_spectrum_curve(load)
