@@ -6,11 +6,18 @@ import math
 import re
 from html import escape
 from html.parser import HTMLParser
+from pathlib import Path
 
 import numpy as np
 import pytest
 from matplotlib.image import imread
 
+from tests.report.conftest import TEST_DPI, as_written
+from tmd.case import load_case
+from tmd.jobs import design_job
+from tmd.report import render_report, series
+from tmd.report.assemble import comfort_caption
+from tmd.report.comfort import comfort_limits
 from tmd.report.tables import format_value
 from tmd.schema import CAUTIONS
 
@@ -219,3 +226,63 @@ def test_cautions_section_carries_the_usual_cautions(case_report):
 def test_number_format(value, text):
     """Four significant figures, thousands separated (the report's stated convention)."""
     assert format_value(value) == text
+
+
+def test_compare_report_states_no_verdict_of_its_own(compare_report):
+    """Defect 13.12: the comparison report never says the bare building meets the target.
+
+    Its verdicts are the options' own ``meets_target`` from results.json (checked
+    cell by cell by check_cells); the damper section states none of its own.
+    """
+    _, results, files = compare_report
+    html = files["report.html"].decode("utf-8")
+    assert results.get("design") is None and "sizing" not in results
+    assert "bare building meets the target" not in html
+    assert "specifies no single damper" in html
+    assert "Response without a specified damper" in html
+    assert check_cells(html, results) > 50
+    keyed = {c["attrs"]["data-key"]: c["text"] for c in cells_of(html)
+             if "data-key" in c["attrs"]}
+    for i, option in enumerate(results["options"]):
+        assert keyed[f"options.{i}.meets_target"] == ("yes" if option["meets_target"] else "no")
+
+
+def test_no_damper_statement_is_the_sizing_message(tmp_path):
+    """Where the design job needs no damper, the report repeats results.json's own message."""
+    demo = Path(__file__).resolve().parents[2] / "cases"
+    text = (demo / "harbourline_residences.toml").read_text(encoding="utf-8")
+    text = text.replace("peak_acceleration_m_s2 = 0.10", "peak_acceleration_m_s2 = 0.30")
+    (tmp_path / "case.toml").write_text(text, encoding="utf-8")
+    (tmp_path / "harbourline_force.csv").write_bytes((demo / "harbourline_force.csv").read_bytes())
+    case = load_case(tmp_path / "case.toml")
+    results = as_written(design_job(case))
+    assert results["design"] is None and results["sizing"]["governed_by"] == "bare"
+    html = render_report(case, results, dpi=TEST_DPI)["report.html"].decode("utf-8")
+    callout = re.findall(r'<p class="box">(.*?)</p>', html, re.S)
+    assert callout == [escape(f"No damper is specified: {results['sizing']['message']}.")]
+
+
+def test_comfort_caption_says_which_points_have_no_limit(full_report):
+    """No 50-year limit is shipped: the caption says the 50-year points stand against none."""
+    case, results, _ = full_report
+    responses = series.comfort_responses(results, case.mode.frequency_hz)
+    shown, hidden = series.matching_limits(comfort_limits(), responses)
+    caption = comfort_caption(shown, hidden, responses)
+    assert {c.return_period_years for c in comfort_limits()} == {1.0, 10.0}
+    assert "of the same return period" not in caption
+    assert "No shipped limit has the return period of the 50-year points" in caption
+    for limit in shown:
+        assert limit.label in caption
+
+
+def test_labels_read_plainly(case_report):
+    """No list key repeated in its own label; the damper's damping ratio says what it refers to."""
+    _, results, files = case_report
+    html = files["report.html"].decode("utf-8")
+    assert "return periods years" not in html and "(of its own frequency)" not in html
+    if "wind" in results["case"]["inputs"]:
+        periods = results["case"]["inputs"]["wind"]["return_periods_years"]
+        rows = re.findall(r"<tr><td>([^<]*)</td><td[^>]*data-key=\"case\.inputs\.wind\."
+                          r"return_periods_years\.\d+\"", html)
+        assert rows == ["wind · return periods"] + [""] * (len(periods) - 1)
+    assert "damper damping ratio ζ_d (referred to the damper frequency f_d)" in html

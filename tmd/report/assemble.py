@@ -75,9 +75,10 @@ def comfort_caption(shown, hidden, responses) -> str:
 
     periods = [r.return_period_years for r in responses]
     limited = {c.return_period_years for c in shown}
-    text = ("Peak acceleration at the building frequency, bare (open markers) and with the "
-            "damper (filled), for " + ", ".join(period(p) for p in periods)
-            + " loads, beside the user's target.")
+    damped = any(r.damped_peak_m_s2 is not None for r in responses)
+    text = ("Peak acceleration at the building frequency, bare (open markers)"
+            + (" and with the damper (filled)" if damped else "") + ", for "
+            + ", ".join(period(p) for p in periods) + " loads, beside the user's target.")
     if shown:
         text += " Comfort limits drawn: " + "; ".join(c.label for c in shown) + "."
     unmatched = [p for p in periods if p not in limited]
@@ -291,7 +292,9 @@ class _Report:
                     "(comfort at short return periods; stroke and force for end-stops and the "
                     "supporting slab at long ones)", damped, "by_return_period")))
         blocks += self._response_figures()
-        return Section("Damper specification", blocks)
+        title = ("Damper specification" if design is not None or "sizing" in r
+                 else "Response without a specified damper")
+        return Section(title, blocks)
 
     def _no_design_statement(self) -> str:
         """Why the results hold no design block, in the results' own words.
@@ -326,8 +329,8 @@ class _Report:
         h = series.acceleration_frequency_response(self.load, design)
         out = [self._figure("frequency_response", plots.plot_frequency_response(
             h.frequency_hz, h.bare, h.damped),
-            "Acceleration at the evaluation height per unit modal force, bare and with the "
-            "damper.")]
+            "Acceleration at the evaluation height per unit modal force, "
+            + ("bare and with the damper." if design else "bare building (no damper specified)."))]
         self._step("acceleration_psd")
         p = series.acceleration_psd(self.load, design)
         bare = r["bare"]
@@ -352,7 +355,8 @@ class _Report:
             chosen_stroke_m=design and design["peak_stroke_m"], max_stroke_m=settings.max_stroke_m)
         out.append(self._figure("mass_ratio", ax, "Peak acceleration and peak stroke of the "
                                 "best-tuned TMD at each mass ratio (same objective and stroke "
-                                "limit as the design); the star marks the chosen design."))
+                                "limit as the case's design)"
+                                + ("; the star marks the chosen design." if design else ".")))
         return out
 
     def comfort_section(self) -> Section:
@@ -455,8 +459,11 @@ class _Report:
             [o["option"] for o in options], [o["mass_ratio"] for o in options],
             [o["peak_acceleration_m_s2"] for o in options],
             None if any(b is None for b in band) else band, target_peak_m_s2=self.target)
-        blocks.append(self._figure("options", ax, "Peak acceleration of each option against its "
-                                   "mass ratio; triangles: the worst across the frequency band."))
+        caption = ("Peak acceleration of each option (filled circles), one row per option, "
+                   "labelled with its added mass as a share of the modal mass M*")
+        if ax.get_legend() is not None and len(ax.lines) > 1:
+            caption += "; open triangles: the worst peak across the frequency band"
+        blocks.append(self._figure("options", ax, caption + "."))
         return Section("Options", blocks)
 
     def cautions_section(self) -> Section:

@@ -143,8 +143,10 @@ def label_and_unit(key: str, scale_unit: str | None = None,
 def leaf_label(dotted: str, key: str, labels: dict | None = None) -> tuple[str, str]:
     """Label and unit of a flattened key path, its parents named in front.
 
-    An item of a list of numbers is named by its list and position
-    ("wind · return periods, item 2"), not by the list's key twice.
+    An item of a list of numbers is named by its list once: the first item's
+    row carries the label ("wind · return periods"), the rows of the further
+    items continue it with an empty label (an index printed in a label would be
+    a number without a results key).
 
     Parameters
     ----------
@@ -161,9 +163,12 @@ def leaf_label(dotted: str, key: str, labels: dict | None = None) -> tuple[str, 
     """
     parts = dotted.split(".") if dotted else []
     label, unit = label_and_unit(key, labels=labels)
+    item = None
     if parts and parts[-1].isdigit() and len(parts) >= 2 and parts[-2] == key:
-        label = f"{label}, item {int(parts[-1]) + 1}"
+        item = int(parts[-1])
         parts = parts[:-1]
+    if item:  # a further item of a list: its row continues the first one's label
+        return "", unit
     parent = path_label(".".join(parts[:-1]))
     return (f"{parent} · {label}" if parent else label), unit
 
