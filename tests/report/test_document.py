@@ -209,6 +209,7 @@ def test_cautions_section_carries_the_usual_cautions(case_report):
     shown = re.findall(r"<p>Cautions:</p>\s*<ul[^>]*>(.*?)</ul>", html, re.S)
     assert shown and re.findall(r"<li>(.*?)</li>", shown[0]) == [
         escape(c) for c in results["cautions"]]
+    assert results["cautions"] == list(CAUTIONS)  # the one copy, in tmd.schema
     for phrase in ("Preliminary", "re-tuned", "across-wind", "Local codes"):
         assert phrase in html
 

@@ -32,7 +32,7 @@ from tmd.report.tables import (
     record_table,
     retuning_table,
 )
-from tmd.schema import CAUTIONS, DESIGN_REPORT_ORDER
+from tmd.schema import DESIGN_REPORT_ORDER
 
 SWEEP_TITLES = (
     ("sweep", "Detuning sweep of the design (structure frequency factor)"),
