@@ -13,7 +13,7 @@ import pytest
 from matplotlib.image import imread
 
 from tests.report.conftest import TEST_DPI, as_written
-from tmd.case import load_case
+from tmd.case import read_case
 from tmd.jobs import design_job
 from tmd.report import render_report, series
 from tmd.report.assemble import comfort_caption
@@ -255,7 +255,7 @@ def test_no_damper_statement_is_the_sizing_message(tmp_path):
     text = text.replace("peak_acceleration_m_s2 = 0.10", "peak_acceleration_m_s2 = 0.30")
     (tmp_path / "case.toml").write_text(text, encoding="utf-8")
     (tmp_path / "harbourline_force.csv").write_bytes((demo / "harbourline_force.csv").read_bytes())
-    case = load_case(tmp_path / "case.toml")
+    case = read_case(tmp_path / "case.toml")
     results = as_written(design_job(case))
     assert results["design"] is None and results["sizing"]["governed_by"] == "bare"
     html = render_report(case, results, dpi=TEST_DPI)["report.html"].decode("utf-8")
