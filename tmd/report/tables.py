@@ -368,13 +368,39 @@ def retuning_table(design: dict, frequency_band: float, band_source: str) -> Tab
 
 
 def csv_bytes(table: Table) -> bytes:
-    """The table as CSV: header texts, then each cell's scaled value at full precision."""
+    """The table as CSV: header texts, then each cell's scaled value at full precision.
+
+    Spreadsheet programs guess the encoding of a CSV without a byte-order mark
+    and garble non-ASCII text, so units are written as the ASCII suffixes of
+    the results.json keys (``m_s2``, ``n_s_per_m``) and the project's own
+    labels are kept to ASCII. Text from the case (a name with an accent) can
+    still be non-ASCII; such a file is written as UTF-8 with a byte-order mark.
+    """
     buffer = io.StringIO()
     writer = csv.writer(buffer, lineterminator="\n")
-    writer.writerow([c.text for c in table.header])
+    writer.writerow([_ascii(c.text) for c in table.header])
     for row in table.rows:
-        writer.writerow([_raw(c) for c in row])
-    return buffer.getvalue().encode("utf-8")
+        writer.writerow([_ascii(_raw(c)) if c.key is None else _raw(c) for c in row])
+    text = buffer.getvalue()
+    return text.encode("utf-8-sig" if not text.isascii() else "ascii")
+
+
+_CSV_UNITS = {printed: suffix[1:] for suffix, printed in UNIT_SUFFIXES}
+_CSV_SYMBOLS = {"·": "-", "±": "+/-", "²": "^2", "³": "^3", "×": "x", "—": "-", "–": "-",
+                "≤": "<=", "≥": ">=", "µ": "u", "…": "...", "°": " deg", "≈": "~"}
+
+
+def _ascii(text: str) -> str:
+    """A label or unit for a CSV: units as results.json suffixes, symbols spelt in ASCII."""
+    if text in _CSV_UNITS:
+        return _CSV_UNITS[text]
+    if text.endswith("]") and "[" in text:
+        label, _, unit = text[:-1].rpartition("[")
+        if unit in _CSV_UNITS:
+            text = f"{label}[{_CSV_UNITS[unit]}]"
+    for symbol, spelt in _CSV_SYMBOLS.items():
+        text = text.replace(symbol, spelt)
+    return text
 
 
 def _raw(cell: Cell) -> str:
