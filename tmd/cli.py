@@ -32,7 +32,7 @@ from tmd.jobs import (
     sweep_job,
     wind_job,
 )
-from tmd.outputs import OutputFolder, to_json, write_all
+from tmd.outputs import OutputFolder, to_json
 from tmd.rules import FrequencyRatio, InputError, Ratio, require
 from tmd.schema import CAUTIONS
 
@@ -66,9 +66,11 @@ def _guarded(job):
         token = _OPEN.set(stack)
         try:
             with stack, warnings.catch_warnings():
-                # Floating-point warnings are checked by the library where they matter; the
-                # raw numpy/matplotlib text means nothing to an engineer (see jobs.notes).
+                # The jobs gather their own warnings (tmd.notes) into the results; what is
+                # raised outside them (reading the case, drawing the report) is printed once
+                # per message as one plain line, and numpy's floating-point text not at all.
                 warnings.simplefilter("ignore", RuntimeWarning)
+                warnings.showwarning = _show_once(set())
                 return job(*args, **kwargs)
         except InputError as exc:
             _error("error", exc)
@@ -87,11 +89,21 @@ def _guarded(job):
     return run
 
 
+def _show_once(seen: set):
+    def show(message, category, filename, lineno, file=None, line=None):
+        text = str(message)
+        if text not in seen:
+            seen.add(text)
+            err_console.print(f"[yellow]warning:[/] {escape(text)}", highlight=False)
+
+    return show
+
+
 def _numerical(where: str, exc: Exception) -> str:
     kind = type(exc).__name__
     text = str(exc) or "(no message)"
-    return (f"{where}: {kind}: {text}. This is not a problem with the input as validated; "
-            "re-run with TMD_DEBUG=1 for a traceback and report it with the case file")
+    return (f"{where}: the computation failed ({kind}: {text}); the inputs passed validation. "
+            "Set TMD_DEBUG=1 for a traceback")
 
 
 def _accel(value: float) -> str:
@@ -555,7 +567,13 @@ def simulate(case: CaseArg,
     from tmd.jobs import simulation_job
     from tmd.simulation import SimulationInputError, SimulationSettings
 
+    target = None
+    if not json_output:  # the folder is checked and locked before the simulation runs
+        folder = out if out is not None else Path("out") / f"{case.stem}-simulation"
+        target = _OPEN.get().enter_context(OutputFolder(folder, protected=(case, design_from)))
     c = read_case(case)
+    if target is not None:
+        target.protect(c.input_files)
     device = _simulated_device_from(c, design_from, option)
     if end_stop_travel_m is not None and not (0 < end_stop_travel_m < float("inf")):
         raise CaseError(f"--end-stop-travel-m = {end_stop_travel_m!r}: must be finite and > 0")
@@ -572,11 +590,10 @@ def simulate(case: CaseArg,
     _print_notes(result)
     from tmd.report.simulation_plots import simulation_files
 
-    folder = out if out is not None else Path("out") / f"{case.stem}-simulation"
     files = {"results.json": to_json(result)} | simulation_files(result, holder["history"],
                                                                  holder["maxima"])
-    written = write_all(folder, files, protected=c.input_files + (design_from,))
-    out_console.print(escape(f"wrote {len(written)} files to {folder} (results.json, "
+    written = target.write(files)
+    out_console.print(escape(f"wrote {len(written)} files to {target.folder} (results.json, "
                              "time_history.csv, figures/)"), highlight=False, soft_wrap=True)
 
 

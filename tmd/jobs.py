@@ -7,15 +7,16 @@ keys have none). Nothing here prints or writes files.
 
 from __future__ import annotations
 
-import warnings
 from collections.abc import Callable
 from dataclasses import asdict
+from pathlib import Path
 
 from tmd import __version__
 from tmd.case import Case, CaseError, RobustnessTable, WindLoad
 from tmd.dampers.tuned_mass import TunedMassDamper
 from tmd.defaults import FREQUENCY_BAND
 from tmd.design import LoadedMode, Sizing, TmdDesign, bare_response, evaluate_tmd, least_mass, tune
+from tmd.notes import DEFAULT_LOAD, about, collect
 from tmd.schema import CAUTIONS, SCHEMA_VERSION, design_block
 
 
@@ -36,20 +37,26 @@ def by_return_period(case: Case, design: TmdDesign | None) -> list[dict]:
     """Bare and damped responses for every return period of a wind case."""
     rows = []
     for wind_load in case.wind_loads:
-        load = loaded_mode_of(case, wind_load)
-        row = {"return_period_years": wind_load.return_period_years,
-               "mean_speed_m_s": wind_load.mean_speed_m_s,
-               "aerodynamic_damping_ratio": wind_load.aerodynamic_damping_ratio,
-               "bare": asdict(bare_response(load))}
-        if design is not None:
-            d = evaluate_tmd(load, design.damper, case.target_peak_m_s2
-                             if wind_load.return_period_years == case.target_return_period_years
-                             else None)
-            row["design"] = {key: getattr(d, key) for key in (
-                "sigma_acceleration_m_s2", "peak_acceleration_m_s2", "sigma_stroke_m",
-                "peak_stroke_m", "peak_damper_force_n", "effective_damping_ratio")}
-        rows.append(row)
+        with about(load_name(case, wind_load)):
+            rows.append(_return_period_row(case, design, wind_load))
     return rows
+
+
+def _return_period_row(case: Case, design: TmdDesign | None, wind_load: WindLoad) -> dict:
+    """One return period's bare and damped responses."""
+    load = loaded_mode_of(case, wind_load)
+    row = {"return_period_years": wind_load.return_period_years,
+           "mean_speed_m_s": wind_load.mean_speed_m_s,
+           "aerodynamic_damping_ratio": wind_load.aerodynamic_damping_ratio,
+           "bare": asdict(bare_response(load))}
+    if design is not None:
+        d = evaluate_tmd(load, design.damper, case.target_peak_m_s2
+                         if wind_load.return_period_years == case.target_return_period_years
+                         else None)
+        row["design"] = {key: getattr(d, key) for key in (
+            "sigma_acceleration_m_s2", "peak_acceleration_m_s2", "sigma_stroke_m",
+            "peak_stroke_m", "peak_damper_force_n", "effective_damping_ratio")}
+    return row
 
 
 def _header(case: Case) -> dict:
@@ -90,12 +97,27 @@ def size_damper(case: Case) -> Sizing:
         f"(peak {design.peak_acceleration_m_s2:.4g} m/s^2)"))
 
 
-def _with_notes(build: Callable[[], dict]) -> dict:
-    """Run a job's ``build``; add the warnings it raised and the cautions to its result."""
-    with warnings.catch_warnings(record=True) as caught:
-        warnings.simplefilter("always")
-        result = build()
-    result["warnings"] = list(dict.fromkeys(str(w.message) for w in caught))
+def load_name(case: Case, wind_load: WindLoad | None = None) -> str:
+    """The load in words, for warnings: "1-year wind (design load)" or the force spectrum file."""
+    if case.wind_loads:
+        period = (wind_load.return_period_years if wind_load is not None
+                  else case.target_return_period_years)
+        design = " (design load)" if period == case.target_return_period_years else ""
+        return f"{period:g}-year wind{design}"
+    source = getattr(case.spectrum, "source", "") or "the force spectrum"
+    return f"design load ({Path(source).name})"
+
+
+def _with_notes(build: Callable[[], dict], case: Case | None = None) -> dict:
+    """Run a job's ``build``; add its warnings (one per cause and load) and the cautions.
+
+    Warnings about the case's inputs come first; the computation's own are
+    merged by :func:`tmd.notes.collect`, each naming its load.
+    """
+    first = case.notes if case is not None else ()
+    with about(load_name(case) if case is not None else DEFAULT_LOAD):
+        result, lines = collect(build, first)
+    result["warnings"] = lines
     result["cautions"] = list(CAUTIONS)
     return result
 
@@ -119,7 +141,7 @@ def design_job(case: Case) -> dict:
             result |= robustness_block(case, sizing.design.damper)
         return result
 
-    return _with_notes(build)
+    return _with_notes(build, case)
 
 
 def _structure_damping(case: Case):
@@ -143,11 +165,13 @@ def robustness_block(case: Case, damper: TunedMassDamper) -> dict:
         p = r.probabilistic
         uncertainty = Uncertainty(p.frequency_cov, p.damping_cov, Distribution(p.distribution),
                                   p.exceedance_probability, p.seed, p.sample_count)
-    study = robustness_study(
-        loaded_mode_of(case), damper, case.target_peak_m_s2, frequency_band=r.frequency_band,
-        sweep_range=r.sweep_range, robust_design=r.robust_design,
-        max_mass_ratio=case.damper.max_mass_ratio, max_stroke_m=case.damper.max_stroke_m,
-        structure_damping_ratio=_structure_damping(case), probabilistic=uncertainty)
+    with about(f"detuning sweep and band check on the {load_name(case)}"):
+        study = robustness_study(
+            loaded_mode_of(case), damper, case.target_peak_m_s2,
+            frequency_band=r.frequency_band, sweep_range=r.sweep_range,
+            robust_design=r.robust_design, max_mass_ratio=case.damper.max_mass_ratio,
+            max_stroke_m=case.damper.max_stroke_m,
+            structure_damping_ratio=_structure_damping(case), probabilistic=uncertainty)
     study["robustness_summary"] = study.pop("summary")
     return study
 
@@ -160,14 +184,16 @@ def sweep_job(case: Case, damper: TunedMassDamper) -> dict:
 
     def build():
         load = loaded_mode_of(case)
-        return _header(case) | {
+        result = _header(case) | {
             "target": _target_block(case),
             "design": design_block(evaluate_tmd(load, damper, case.target_peak_m_s2)),
-        } | design_sweeps(load, damper, frequency_band=r.frequency_band,
-                          sweep_range=r.sweep_range,
-                          structure_damping_ratio=_structure_damping(case))
+        }
+        with about(f"detuning sweep on the {load_name(case)}"):
+            return result | design_sweeps(load, damper, frequency_band=r.frequency_band,
+                                          sweep_range=r.sweep_range,
+                                          structure_damping_ratio=_structure_damping(case))
 
-    return _with_notes(build)
+    return _with_notes(build, case)
 
 
 def compare_job(case: Case) -> dict:
@@ -185,13 +211,17 @@ def compare_job(case: Case) -> dict:
             "target": _target_block(case),
             "bare": _bare_block(load),
             "options_frequency_band": band,
-            "options": compare_options(
-                load, case.target_peak_m_s2, enabled=None if opts is None else opts.enabled,
-                max_mass_ratio=case.damper.max_mass_ratio,
-                max_stroke_m=case.damper.max_stroke_m, frequency_band=band),
+            "options": _options(load),
         }
 
-    return _with_notes(build)
+    def _options(load):
+        with about(f"options comparison on the {load_name(case)}"):
+            return compare_options(
+                load, case.target_peak_m_s2, enabled=None if opts is None else opts.enabled,
+                max_mass_ratio=case.damper.max_mass_ratio,
+                max_stroke_m=case.damper.max_stroke_m, frequency_band=band)
+
+    return _with_notes(build, case)
 
 
 def evaluate_job(case: Case, damper: TunedMassDamper) -> dict:
@@ -209,7 +239,7 @@ def evaluate_job(case: Case, damper: TunedMassDamper) -> dict:
             result["by_return_period"] = by_return_period(case, design)
         return result
 
-    return _with_notes(build)
+    return _with_notes(build, case)
 
 
 def wind_job(case: Case) -> dict:

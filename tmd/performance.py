@@ -15,13 +15,54 @@ import numpy as np
 from scipy.optimize.elementwise import find_root
 
 from tmd.dampers.absorber import Absorbers
+from tmd.notes import LoadWarning, current_load
 from tmd.peak import davenport_peak_factor, peak_factor_is_held
 from tmd.response import RESPONSES, TOP_DECADE_WARNING, Moments, spectral_response
 from tmd.spectra import ForceSpectrum
 
 
-class UpperEdgeWarning(UserWarning):
-    """Much of a response moment comes from the top decade of the load spectrum."""
+class UpperEdgeWarning(LoadWarning):
+    """Much of a response moment comes from the top decade of the load spectrum.
+
+    Its values are ``share_m0`` and ``share_m2`` (the largest shares of the
+    acceleration's variance and second moment over the batch [-]) and
+    ``f_max_hz``, the top of the load's range [Hz].
+    """
+
+    @classmethod
+    def text(cls, load, values, count):
+        """The warning in words (see :meth:`tmd.notes.LoadWarning.text`).
+
+        Parameters
+        ----------
+        load : str
+            The load it concerns.
+        values : dict of str to float
+            ``share_m0``, ``share_m2`` [-] and ``f_max_hz`` [Hz].
+        count : int
+            How many evaluations raised it [-].
+
+        Returns
+        -------
+        str
+            One line.
+        """
+        designs = "one evaluation" if count == 1 else f"the worst of {count} evaluations"
+        return (f"{load}: {100 * values['share_m2']:.1f}% of the acceleration's second moment "
+                f"and {100 * values['share_m0']:.1f}% of its variance come from the top decade "
+                f"of the load spectrum (up to {values['f_max_hz']:g} Hz; {designs}), so the "
+                "up-crossing rate and peak factor depend on where the spectrum is cut off; "
+                "extend the spectrum table to higher frequencies")
+
+    def key(self):
+        """Kind, load and the spectrum's top frequency.
+
+        Returns
+        -------
+        tuple
+            A hashable key.
+        """
+        return (type(self), self.load, self.values["f_max_hz"])
 
 
 @dataclass(frozen=True)
@@ -95,12 +136,9 @@ def assess(frequency_hz, modal_mass_kg, damping_ratio, absorbers: Absorbers,
     peak_x = _peak(r.displacement, duration_s)[0] if r.displacement is not None else None
     share0, share2 = r.acceleration_top_decade
     if warn and np.any(np.maximum(share0, share2) > TOP_DECADE_WARNING):
-        warnings.warn(
-            f"{100 * np.max(share2):.1f}% of the acceleration's second moment and "
-            f"{100 * np.max(share0):.1f}% of its variance come from the top decade of the load "
-            f"spectrum (up to {spectrum.f_max_hz:g} Hz); the up-crossing rate and peak factor "
-            "depend on where the spectrum is cut off",
-            UpperEdgeWarning, stacklevel=2)
+        warnings.warn(UpperEdgeWarning(current_load(), {
+            "share_m0": float(np.max(share0)), "share_m2": float(np.max(share2)),
+            "f_max_hz": float(spectrum.f_max_hz)}), stacklevel=2)
     return Assessment(
         sigma_displacement_m=r.displacement.sigma if r.displacement is not None else None,
         peak_displacement_m=peak_x,
