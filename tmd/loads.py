@@ -43,12 +43,7 @@ from tmd.wind.profile import MAXIMUM_HEIGHT_M
 from tmd.wind.turbulence import velocity_spectrum
 
 COHERENCE_MODELS = ("exponential", "exponential-vertical", "admittance")
-# Up to 1 kHz although wind loading above ~10 Hz is negligible: the acceleration's
-# second moment converges slowly (the top decade of a 10 Hz table still held 1-4% of m2
-# on the Kestrel demo, making the peak factor depend on the cut-off); at 1 kHz the top
-# decade holds at most about 0.1%. 57 points per decade keep the log-log interpolant of the smooth
-# modal force spectrum within 1e-5 of a denser table (peaks checked on the demo).
-DEFAULT_FREQUENCY_HZ = np.geomspace(1e-4, 1e3, 400)
+DEFAULT_FREQUENCY_HZ = np.geomspace(1e-4, 10.0, 400)
 _GAUSS_NODES, _GAUSS_WEIGHTS = np.polynomial.legendre.leggauss(16)
 _GAUSS_NODES = 0.5 * (_GAUSS_NODES + 1.0)  # on [0, 1]
 _GAUSS_WEIGHTS = 0.5 * _GAUSS_WEIGHTS
@@ -402,7 +397,7 @@ def modal_force_spectrum(site, building, return_period_years=50.0, *, spectrum="
         Coherence decay constants C_z, C_y [-].
     frequency_hz : array, optional
         Table frequencies [Hz], increasing and > 0; default 400 log-spaced
-        points from 1e-4 to 1000 Hz.
+        points from 1e-4 to 10 Hz.
 
     Returns
     -------
