@@ -88,6 +88,7 @@ class DamperTable(_Table):
     mass_ratio: Ratio | None = None
     max_mass_ratio: Ratio = defaults.MAX_MASS_RATIO
     max_stroke_m: _capped(100.0) | None = None
+    stroke_return_period_years: ReturnPeriod | None = None
 
     @model_validator(mode="after")
     def _fixed_within_max(self):
@@ -167,6 +168,20 @@ class CaseTable(_Table):
         if self.wind is not None and self.target.return_period_years is None:
             raise ValueError("[target] return_period_years is required with [wind]: name the "
                              "return period the target applies to")
+        stroke_period = self.damper.stroke_return_period_years
+        if stroke_period is not None:
+            if self.wind is None:
+                raise ValueError("[damper] stroke_return_period_years needs a [wind] case (a "
+                                 "force-spectrum CSV has one load only)")
+            if self.damper.max_stroke_m is None:
+                raise ValueError("[damper] stroke_return_period_years needs max_stroke_m: the "
+                                 "limit to hold at that return period")
+            reported = set(self.wind.return_periods_years) | {self.target.return_period_years}
+            if stroke_period not in reported:
+                raise ValueError(f"[damper] stroke_return_period_years = {stroke_period:g} is "
+                                 f"not a reported return period; allowed: "
+                                 f"{sorted(reported)} ([wind] return_periods_years and the "
+                                 "target's)")
         return self
 
 
@@ -178,6 +193,7 @@ class DamperSettings:
     mass_ratio: float | None
     max_mass_ratio: float
     max_stroke_m: float | None
+    stroke_return_period_years: float | None = None  # None: the target's return period
 
 
 @dataclass(frozen=True)
@@ -250,7 +266,8 @@ def read_case(path: str | Path) -> Case:
         name=table.name, path=path, mode=mode,
         target_peak_m_s2=table.target.peak_acceleration_m_s2,
         duration_s=table.target.duration_s,
-        damper=DamperSettings(d.objective, d.mass_ratio, d.max_mass_ratio, d.max_stroke_m),
+        damper=DamperSettings(d.objective, d.mass_ratio, d.max_mass_ratio, d.max_stroke_m,
+                              d.stroke_return_period_years),
         description=table.description, inputs=raw, tables=table,
         notes=_unusual(path, table),
     )

@@ -149,17 +149,55 @@ def _return_period_table(result: dict) -> Table | None:
     if not rows:
         return None
     table = Table(title="per return period (design at the target's)")
+    limited = any("stroke_within_limit" in (row.get("design") or {}) for row in rows)
     for name in ("return period", "bare peak acc.", "damped peak acc.", "peak stroke",
-                 "peak damper force"):
+                 "peak damper force") + (("stroke limit",) if limited else ()):
         table.add_column(name, justify="right")
     for row in rows:
         d = row.get("design") or {}
-        table.add_row(
+        cells = [
             f"{row['return_period_years']:g} y", _accel(row["bare"]["peak_acceleration_m_s2"]),
             _accel(d["peak_acceleration_m_s2"]) if d else "-",
             f"{d['peak_stroke_m']:.3f} m" if d else "-",
-            f"{d['peak_damper_force_n'] / 1000:,.1f} kN" if d else "-")
+            f"{d['peak_damper_force_n'] / 1000:,.1f} kN" if d else "-"]
+        if limited:
+            ok = d.get("stroke_within_limit")
+            cells.append("-" if ok is None else "within" if ok else "[red]EXCEEDED[/]")
+        table.add_row(*cells)
     return table
+
+
+def _end_stop_table(result: dict) -> Table | None:
+    """Travel, stop contacts, impact velocity and connection-force estimate."""
+    e = result.get("end_stops")
+    if not e:
+        return None
+    table = Table(title=f"end-stops: travel ±{e['travel_m']:.3f} m ({e['travel_basis']})")
+    for name in ("return period", "peak stroke", "contacts / hour / side",
+                 "connection force (estimate)"):
+        table.add_column(name, justify="right")
+    for row in e["by_return_period"]:
+        period = row["return_period_years"]
+        table.add_row("design load" if period is None else f"{period:g} y",
+                      f"{row['peak_stroke_m']:.3f} m",
+                      f"{3600 * row['contact_rate_per_side_hz']:.3g}",
+                      f"{row['connection_force_estimate_n'] / 1000:,.1f} kN")
+    return table
+
+
+def _print_end_stops(result: dict) -> None:
+    if (table := _end_stop_table(result)) is None:
+        return
+    e = result["end_stops"]
+    out_console.print(table)
+    where = ("" if e["extreme_return_period_years"] is None
+             else f" at {e['extreme_return_period_years']:g} years")
+    out_console.print(
+        f"impact velocity at the stops{where}: mean {e['impact_velocity_mean_m_s']:.2f} m/s, "
+        f"{e['impact_velocity_rare_m_s']:.2f} m/s at 1 contact in "
+        f"{1 / e['impact_velocity_rare_probability']:.0f} (Rayleigh); kinetic energy at the "
+        f"mean {e['impact_energy_mean_j'] / 1000:,.1f} kJ", highlight=False)
+    out_console.print("[dim]" + escape(e["note"]) + "[/]", highlight=False)
 
 
 def _print_notes(result: dict) -> None:
@@ -183,6 +221,7 @@ def design(case: CaseArg,
     sizing = result["sizing"]
     colour = "green" if sizing["meets_target"] else "red"
     out_console.print(f"[{colour}]{escape(sizing['message'])}[/]", highlight=False)
+    _print_end_stops(result)
     _print_robustness(result)
     _print_notes(result)
     _write(c, result, target)

@@ -141,13 +141,14 @@ def central_difference_gradient(values):
 class _TuningProblem:
     """Objective and stroke constraint with batched central-difference gradients."""
 
-    def __init__(self, loaded, mass_ratio, objective, statistic, max_stroke_m):
+    def __init__(self, loaded, mass_ratio, objective, statistic, max_stroke_m, stroke_loads=()):
         if objective not in OBJECTIVES:
             raise ValueError(f"objective must be one of {OBJECTIVES}, got {objective!r}")
         if statistic not in STATISTICS:
             raise ValueError(f"statistic must be one of {STATISTICS}, got {statistic!r}")
         self.loaded, self.mu = loaded, mass_ratio
         self.objective, self.statistic, self.max_stroke = objective, statistic, max_stroke_m
+        self.stroke_loads = tuple(stroke_loads)  # further loads the stroke limit applies to
         self._x = None
 
     def _measure(self, a):
@@ -162,15 +163,19 @@ class _TuningProblem:
             return
         pts = central_difference_points(x)
         m = self.loaded.mode
-        a = self.loaded.assess(single_tmd(m.frequency_hz, m.modal_mass_kg, self.mu, pts[:, 0],
-                                          np.exp(pts[:, 1])),
-                               responses=("acceleration", "stroke", self.objective))
+        absorbers = single_tmd(m.frequency_hz, m.modal_mass_kg, self.mu, pts[:, 0],
+                               np.exp(pts[:, 1]))
+        a = self.loaded.assess(absorbers, responses=("acceleration", "stroke", self.objective))
         value = np.log(self._measure(a))
-        stroke = a.peak_stroke_m[:, 0]
+        # One row per load the limit applies to: the design load, then the others.
+        strokes = np.vstack([a.peak_stroke_m[:, 0]] + [
+            other.assess(absorbers, responses=("stroke",)).peak_stroke_m[:, 0]
+            for other in self.stroke_loads])
         self._x = x.copy()  # the optimiser may reuse and mutate its array
-        self.value, self.stroke = value[0], stroke[0]
+        self.value, self.strokes = value[0], strokes[:, 0]
+        self.stroke = float(np.max(self.strokes))
         self.grad = central_difference_gradient(value)
-        self.stroke_grad = central_difference_gradient(stroke)
+        self.stroke_grad = central_difference_gradient(strokes.T).T
 
     def fun(self, x):
         self.evaluate(x)
@@ -182,15 +187,16 @@ class _TuningProblem:
 
     def constraint(self, x):
         self.evaluate(x)
-        return np.array([1.0 - self.stroke / self.max_stroke])
+        return 1.0 - self.strokes / self.max_stroke
 
     def constraint_jac(self, x):
         self.evaluate(x)
-        return -self.stroke_grad[None, :] / self.max_stroke
+        return -self.stroke_grad / self.max_stroke
 
 
 def tune(loaded: LoadedMode, mass_ratio: float, *, objective: str = "acceleration",
-         statistic: str = "peak", max_stroke_m: float | None = None) -> Tuning:
+         statistic: str = "peak", max_stroke_m: float | None = None,
+         stroke_loads: tuple[LoadedMode, ...] = ()) -> Tuning:
     """Best frequency and damping ratio of a TMD of given mass ratio.
 
     Parameters
@@ -204,6 +210,9 @@ def tune(loaded: LoadedMode, mass_ratio: float, *, objective: str = "acceleratio
         Minimise the peak (g sigma, the default) or the rms value.
     max_stroke_m : float, optional
         Upper limit on the peak stroke [m], a constraint of the tuning.
+    stroke_loads : tuple of LoadedMode
+        Further loads (e.g. a longer return period's wind) under which the
+        peak stroke must also stay within ``max_stroke_m``.
 
     Returns
     -------
@@ -214,7 +223,8 @@ def tune(loaded: LoadedMode, mass_ratio: float, *, objective: str = "acceleratio
     DesignError
         If SLSQP fails from every start.
     """
-    problem = _TuningProblem(loaded, mass_ratio, objective, statistic, max_stroke_m)
+    problem = _TuningProblem(loaded, mass_ratio, objective, statistic, max_stroke_m,
+                             stroke_loads if max_stroke_m is not None else ())
     ratio0, zeta0 = warburton_white_force_tuning(mass_ratio)
     zeta0 = float(np.clip(zeta0, *DAMPING_RATIO_BOUNDS))
     bounds = [FREQUENCY_RATIO_BOUNDS, tuple(np.log(DAMPING_RATIO_BOUNDS))]
@@ -246,7 +256,8 @@ def tune(loaded: LoadedMode, mass_ratio: float, *, objective: str = "acceleratio
 
 
 def least_mass(loaded: LoadedMode, target_peak_m_s2: float, *, max_mass_ratio: float,
-               max_stroke_m: float | None = None, min_mass_ratio: float = 1e-4) -> Sizing:
+               max_stroke_m: float | None = None, min_mass_ratio: float = 1e-4,
+               stroke_loads: tuple[LoadedMode, ...] = ()) -> Sizing:
     """Smallest mass ratio whose best tuning meets the peak-acceleration target.
 
     Parameters
@@ -258,6 +269,10 @@ def least_mass(loaded: LoadedMode, target_peak_m_s2: float, *, max_mass_ratio: f
         Largest mass ratio considered [-].
     max_stroke_m : float, optional
         Peak stroke limit [m], a constraint inside every tuning.
+    min_mass_ratio : float
+        Lower end of the mass search [-].
+    stroke_loads : tuple of LoadedMode
+        Further loads under which the stroke limit also applies (see :func:`tune`).
 
     Returns
     -------
@@ -271,7 +286,7 @@ def least_mass(loaded: LoadedMode, target_peak_m_s2: float, *, max_mass_ratio: f
             f"already meets the target {target_peak_m_s2:.4g} m/s^2: no damper is needed"))
 
     def best(mu):
-        return tune(loaded, mu, max_stroke_m=max_stroke_m)
+        return tune(loaded, mu, max_stroke_m=max_stroke_m, stroke_loads=stroke_loads)
 
     top = best(max_mass_ratio)
     if top.value > target_peak_m_s2:

@@ -56,6 +56,9 @@ def _return_period_row(case: Case, design: TmdDesign | None, wind_load: WindLoad
         row["design"] = {key: getattr(d, key) for key in (
             "sigma_acceleration_m_s2", "peak_acceleration_m_s2", "sigma_stroke_m",
             "peak_stroke_m", "peak_damper_force_n", "effective_damping_ratio")}
+        if case.damper.max_stroke_m is not None:  # checked at every return period
+            row["design"]["stroke_within_limit"] = bool(
+                d.peak_stroke_m <= case.damper.max_stroke_m)
     return row
 
 
@@ -78,15 +81,66 @@ def _target_block(case: Case) -> dict:
     return block
 
 
+def stroke_cases_of(case: Case) -> tuple[LoadedMode, ...]:
+    """Loads besides the design one under which the stroke limit constrains the tuning.
+
+    Parameters
+    ----------
+    case : Case
+
+    Returns
+    -------
+    tuple of LoadedMode
+        The wind load of ``[damper] stroke_return_period_years`` when it is
+        given and differs from the target's return period; else empty.
+    """
+    period = case.damper.stroke_return_period_years
+    if period is None or period == case.target_return_period_years:
+        return ()
+    return tuple(loaded_mode_of(case, w) for w in case.wind_loads
+                 if w.return_period_years == period)
+
+
+def extreme_checks(case: Case, design: TmdDesign, rows: list[dict] | None) -> dict:
+    """The ``end_stops`` block, and a warning per return period whose stroke exceeds the limit.
+
+    Parameters
+    ----------
+    case : Case
+    design : TmdDesign
+    rows : list of dict or None
+        The ``by_return_period`` rows (None for a force-spectrum case).
+
+    Returns
+    -------
+    dict
+        ``{"end_stops": {...}}`` (see :func:`tmd.endstops.end_stop_block`).
+    """
+    from tmd.endstops import StrokeLimitWarning, end_stop_block, stroke_limit_messages
+
+    if case.wind_loads:
+        loads = [(w.return_period_years, loaded_mode_of(case, w)) for w in case.wind_loads]
+    else:
+        loads = [(None, loaded_mode_of(case))]
+    block = end_stop_block(loads, design.damper, case.damper.max_stroke_m)
+    if rows and case.damper.max_stroke_m is not None:
+        constrained = tuple(p for p in (case.target_return_period_years,
+                                        case.damper.stroke_return_period_years) if p is not None)
+        for message in stroke_limit_messages(rows, block, case.damper.max_stroke_m, constrained):
+            warnings.warn(message, StrokeLimitWarning, stacklevel=2)
+    return {"end_stops": block}
+
+
 def size_damper(case: Case) -> Sizing:
     """The TMD the case asks for: tuned at a fixed mass ratio, or the least mass."""
     load = loaded_mode_of(case)
     settings = case.damper
+    extra = stroke_cases_of(case)
     if settings.mass_ratio is None:
         return least_mass(load, case.target_peak_m_s2, max_mass_ratio=settings.max_mass_ratio,
-                          max_stroke_m=settings.max_stroke_m)
+                          max_stroke_m=settings.max_stroke_m, stroke_loads=extra)
     tuning = tune(load, settings.mass_ratio, objective=settings.objective,
-                  max_stroke_m=settings.max_stroke_m)
+                  max_stroke_m=settings.max_stroke_m, stroke_loads=extra)
     design = evaluate_tmd(load, TunedMassDamper(settings.mass_ratio, tuning.frequency_ratio,
                                                 tuning.damping_ratio), case.target_peak_m_s2)
     met = bool(design.meets_target)
@@ -137,6 +191,8 @@ def design_job(case: Case) -> dict:
         }
         if case.wind_loads:
             result["by_return_period"] = by_return_period(case, sizing.design)
+        if sizing.design is not None:
+            result |= extreme_checks(case, sizing.design, result.get("by_return_period"))
         if case.tables.robustness is not None and sizing.design is not None:
             result |= robustness_block(case, sizing.design.damper)
         return result
@@ -237,7 +293,7 @@ def evaluate_job(case: Case, damper: TunedMassDamper) -> dict:
         }
         if case.wind_loads:
             result["by_return_period"] = by_return_period(case, design)
-        return result
+        return result | extreme_checks(case, design, result.get("by_return_period"))
 
     return _with_notes(build, case)
 

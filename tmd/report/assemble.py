@@ -17,6 +17,7 @@ from tmd.defaults import FREQUENCY_BAND
 from tmd.jobs import loaded_mode_of
 from tmd.report import plots, series
 from tmd.report.comfort import comfort_limits
+from tmd.report.extremes import end_stop_tables
 from tmd.report.html import Callout, Figure, Section, document
 from tmd.report.progress import StepCallback, quiet_step
 from tmd.report.tables import (
@@ -291,6 +292,8 @@ class _Report:
                     "by_return_period_damper", "With the damper per return period "
                     "(comfort at short return periods; stroke and force for end-stops and the "
                     "supporting slab at long ones)", damped, "by_return_period")))
+            if r.get("end_stops"):
+                blocks += [self._table(t) for t in end_stop_tables(r["end_stops"])]
         blocks += self._response_figures()
         title = ("Damper specification" if design is not None or "sizing" in r
                  else "Response without a specified damper")

@@ -22,7 +22,7 @@ MILLI_G = 1000.0 / STANDARD_GRAVITY
 UNIT_SUFFIXES = (  # longest first: the key's unit suffix and how it is printed
     ("_n_s_per_m", "N·s/m"), ("_n_per_m", "N/m"), ("_n2_per_hz", "N²/Hz"), ("_m_s2", "m/s²"),
     ("_m_s", "m/s"), ("_kg_m", "kg/m"), ("_m2", "m²"), ("_rad", "rad"), ("_hz", "Hz"),
-    ("_kg", "kg"), ("_years", "years"), ("_n", "N"), ("_m", "m"), ("_s", "s"),
+    ("_kg", "kg"), ("_years", "years"), ("_n", "N"), ("_m", "m"), ("_s", "s"), ("_j", "J"),
 )
 LABELS = {
     "sigma_acceleration_m_s2": "rms acceleration",

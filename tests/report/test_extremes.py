@@ -1,0 +1,40 @@
+"""Extreme-wind checks on the Kestrel Point demo: the 50-year stroke exceedance is flagged
+in results.json, the warnings and the report, and the end-stop numbers trace to results.json."""
+
+import pytest
+
+from tests.report.test_document import cells_of, lookup, printed_number
+
+
+def _kestrel(case_report):
+    case, results, files = case_report
+    if case.path.stem != "kestrel_point":
+        pytest.skip("the demo with a stroke limit and three return periods")
+    return case, results, files
+
+
+def test_fifty_year_stroke_exceedance_is_flagged(case_report):
+    case, results, _ = _kestrel(case_report)
+    rows = {r["return_period_years"]: r["design"] for r in results["by_return_period"]}
+    limit = case.damper.max_stroke_m
+    # The verdict is the one comparison peak <= limit, at every return period.
+    for d in rows.values():
+        assert d["stroke_within_limit"] == (d["peak_stroke_m"] <= limit)
+    assert rows[1.0]["stroke_within_limit"] and not rows[50.0]["stroke_within_limit"]
+    assert any("50-year" in w and "end-stops" in w for w in results["warnings"])
+
+
+def test_end_stop_figures_trace_into_the_report(case_report):
+    _, results, files = _kestrel(case_report)
+    e = results["end_stops"]
+    assert e["travel_m"] == 1.2 and e["extreme_return_period_years"] == 50.0
+    html = files["report.html"].decode("utf-8")
+    keyed = {c["attrs"].get("data-key"): c for c in cells_of(html) if c["attrs"].get("data-key")}
+    shown = [k for k in keyed if k.startswith("end_stops.")]
+    assert "end_stops.impact_velocity_mean_m_s" in shown
+    path = "end_stops.by_return_period.2.contact_rate_per_side_hz"
+    assert path in shown
+    # Contacts per hour are the per-second rate times 3600 (display scale).
+    assert printed_number(keyed[path]["text"]) == pytest.approx(
+        3600 * lookup(results, path), rel=1e-3)
+    assert "tables/end_stops_by_return_period.csv" in files
