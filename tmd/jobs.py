@@ -7,6 +7,7 @@ keys have none). Nothing here prints or writes files.
 
 from __future__ import annotations
 
+import warnings
 from collections.abc import Callable
 from dataclasses import asdict
 from pathlib import Path

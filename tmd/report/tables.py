@@ -387,7 +387,7 @@ def csv_bytes(table: Table) -> bytes:
 
 _CSV_UNITS = {printed: suffix[1:] for suffix, printed in UNIT_SUFFIXES}
 _CSV_SYMBOLS = {"·": "-", "±": "+/-", "²": "^2", "³": "^3", "×": "x", "—": "-", "–": "-",
-                "≤": "<=", "≥": ">=", "µ": "u", "…": "...", "°": " deg", "≈": "~"}
+                "≤": "<=", "≥": ">=", "µ": "u", "…": "...", "°": " deg", "≈": "~", "ζ": "zeta"}
 
 
 def _ascii(text: str) -> str:
