@@ -289,9 +289,9 @@ class _Report:
                       for e in entries]
             if any(len(d) > 1 for d in damped):
                 blocks.append(self._table(by_period_table(
-                    "by_return_period_damper", "With the damper per return period "
-                    "(comfort at short return periods; stroke and force for end-stops and the "
-                    "supporting slab at long ones)", damped, "by_return_period")))
+                    "by_return_period_damper", "With the damper per return period: comfort "
+                    "at short return periods, stroke and force for end-stops and the "
+                    "supporting slab at long ones", damped, "by_return_period")))
             if r.get("end_stops"):
                 blocks += [self._table(t) for t in end_stop_tables(r["end_stops"])]
         blocks += self._response_figures()
