@@ -45,7 +45,7 @@ _DIMENSIONLESS_WORDS = frozenset({
     "ratio", "factor", "factors", "coefficient", "count", "steps", "stages", "columns",
     "probability", "fraction", "loss", "share", "exponent", "band", "intensity", "cov",
     "seed", "version", "range", "parameter", "strips", "positions", "error", "sampled",
-    "index", "points", "target", "number", "sq",
+    "index", "points", "target", "number", "sq", "records", "iteration", "bandwidth",
 })
 # Dimensionless keys whose last word names a dimensioned quantity: a ratio
 # of like quantities written "x_per_modal_y".

@@ -81,6 +81,16 @@ class TargetTable(_Table):
     duration_s: Annotated[float, Field(ge=1, le=86_400, strict=True,
                                        allow_inf_nan=False)] = defaults.DURATION_S
     return_period_years: ReturnPeriod | None = None
+    peak_method: Literal["davenport", "vanmarcke", "simulated"] = "davenport"
+    peak_fractile: Annotated[float, Field(gt=0, lt=1, strict=True, allow_inf_nan=False)] | None \
+        = None
+
+    @model_validator(mode="after")
+    def _fractile_needs_simulation(self):
+        if self.peak_fractile is not None and self.peak_method != "simulated":
+            raise ValueError(f"peak_fractile = {self.peak_fractile} applies only with "
+                             'peak_method = "simulated"')
+        return self
 
 
 class DamperTable(_Table):
@@ -146,6 +156,14 @@ class OptionsTable(_Table):
     frequency_band: Band | None = None
 
 
+class SimulationTable(_Table):
+    """Monte Carlo settings of ``peak_method = "simulated"`` (see tmd.simulation)."""
+
+    records: Annotated[int, Field(ge=10, le=5000)] = 200
+    seed: Annotated[int, Field(ge=0)] = 1
+    time_step_s: Annotated[float, Field(gt=0, le=1.0, allow_inf_nan=False)] | None = None
+
+
 class CaseTable(_Table):
     name: str
     description: str = ""
@@ -157,6 +175,7 @@ class CaseTable(_Table):
     damper: DamperTable = DamperTable()
     robustness: RobustnessTable | None = None
     options: OptionsTable | None = None
+    simulation: SimulationTable | None = None
 
     @model_validator(mode="after")
     def _one_load(self):

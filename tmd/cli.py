@@ -678,14 +678,14 @@ def _print_simulation(result: dict) -> None:
             table.add_row(label, f"{s[f'sigma_{u}'] / s[f'sigma_spectral_{u}']:.4f}",
                           f"{s[f'max_abs_mean_{u}']:.4g}", f"{s[f'davenport_peak_{u}']:.4g}",
                           f"{s[f'vanmarcke_peak_two_sided_{u}']:.4g}",
-                          f"{s['max_abs_mean_to_davenport']:.3f}")
+                          f"{s['max_abs_mean_to_davenport_ratio']:.3f}")
         out_console.print(table)
         acc = row["design"]["acceleration"]
-        if "fraction_of_records_over_limit" in acc:
+        if "records_over_limit_fraction" in acc:
             out_console.print(f"records whose largest |a| exceeds the target: "
-                              f"{100 * acc['fraction_of_records_over_limit']:.1f}%",
+                              f"{100 * acc['records_over_limit_fraction']:.1f}%",
                               highlight=False)
-        if "end_stop_contacts_per_hour" in row["design"]:
-            contacts = row["design"]["end_stop_contacts_per_hour"]
+        if "hourly_end_stop_contact_count" in row["design"]:
+            contacts = row["design"]["hourly_end_stop_contact_count"]
             out_console.print(f"end-stop contacts: {contacts:.2f} per hour", highlight=False)
 

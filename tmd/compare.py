@@ -173,8 +173,8 @@ def _bank_row(job: _Job) -> dict:
     def peaks(s):
         return assess(s * m.frequency_hz, m.modal_mass_kg, m.damping_ratio, absorbers,
                       job.loaded.spectrum, job.loaded.duration_s,
-                      shape_factor=job.loaded.shape_factor,
-                      responses=("acceleration",)).peak_acceleration_m_s2
+                      shape_factor=job.loaded.shape_factor, responses=("acceleration",),
+                      peak_method=job.loaded.peak_method).peak_acceleration_m_s2
 
     stroke = float(np.max(a.peak_stroke_m)) if bank.mass_kg.size else 0.0
     return _measured(job, a, bank.mass_ratio, peaks) | {

@@ -57,17 +57,21 @@ class LoadedMode:
         Averaging duration T for peak factors [s].
     shape_factor : float
         phi(z_eval), the mode shape where acceleration is judged [-].
+    peak_method : str
+        ``"davenport"`` or ``"vanmarcke"`` (:func:`tmd.performance.peak_factor`).
     """
 
     mode: Mode
     spectrum: ForceSpectrum
     duration_s: float = DURATION_S
     shape_factor: float = 1.0
+    peak_method: str = "davenport"
 
     def assess(self, absorbers, **kw):
         m = self.mode
         return assess(m.frequency_hz, m.modal_mass_kg, m.damping_ratio, absorbers,
-                      self.spectrum, self.duration_s, shape_factor=self.shape_factor, **kw)
+                      self.spectrum, self.duration_s, shape_factor=self.shape_factor,
+                      peak_method=self.peak_method, **kw)
 
 
 @dataclass(frozen=True)

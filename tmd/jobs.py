@@ -28,10 +28,26 @@ def loaded_mode_of(case: Case, wind_load: WindLoad | None = None) -> LoadedMode:
     the case asks for it; accelerations are at the evaluation height.
     """
     load = wind_load if wind_load is not None else case.design_wind_load
+    method = spectral_peak_method(case)
     if load is None:
-        return LoadedMode(case.mode, case.spectrum, case.duration_s, case.shape_factor)
+        return LoadedMode(case.mode, case.spectrum, case.duration_s, case.shape_factor, method)
     mode = case.mode.with_damping(case.mode.damping_ratio + load.aerodynamic_damping_ratio)
-    return LoadedMode(mode, load.spectrum, case.duration_s, case.shape_factor)
+    return LoadedMode(mode, load.spectrum, case.duration_s, case.shape_factor, method)
+
+
+def peak_method(case: Case) -> str:
+    """The case's ``[target] peak_method``: davenport, vanmarcke or simulated."""
+    return case.tables.target.peak_method if case.tables is not None else "davenport"
+
+
+def spectral_peak_method(case: Case) -> str:
+    """The spectral peak estimate of the engine's load cases.
+
+    ``"simulated"`` sizes with Davenport's peak, corrected by simulation in
+    an outer loop (:mod:`tmd.simulated_sizing`).
+    """
+    method = peak_method(case)
+    return "davenport" if method == "simulated" else method
 
 
 def by_return_period(case: Case, design: TmdDesign | None) -> list[dict]:
@@ -76,7 +92,10 @@ def _bare_block(load: LoadedMode) -> dict:
 
 
 def _target_block(case: Case) -> dict:
-    block = {"peak_acceleration_m_s2": case.target_peak_m_s2, "duration_s": case.duration_s}
+    block = {"peak_acceleration_m_s2": case.target_peak_m_s2, "duration_s": case.duration_s,
+             "peak_method": peak_method(case)}
+    if case.tables is not None and case.tables.target.peak_fractile is not None:
+        block["peak_fractile"] = case.tables.target.peak_fractile
     if case.target_return_period_years is not None:
         block["return_period_years"] = case.target_return_period_years
     return block
@@ -132,24 +151,113 @@ def extreme_checks(case: Case, design: TmdDesign, rows: list[dict] | None) -> di
     return {"end_stops": block}
 
 
-def size_damper(case: Case) -> Sizing:
-    """The TMD the case asks for: tuned at a fixed mass ratio, or the least mass."""
+def size_damper(case: Case, target_m_s2: float | None = None) -> Sizing:
+    """The TMD the case asks for: tuned at a fixed mass ratio, or the least mass.
+
+    Parameters
+    ----------
+    case : Case
+        The validated case.
+    target_m_s2 : float, optional
+        Peak target of the spectral sizing [m/s^2]; default the case's (the
+        simulated-peak loop passes corrected targets).
+
+    Returns
+    -------
+    Sizing
+    """
+    target = case.target_peak_m_s2 if target_m_s2 is None else target_m_s2
     load = loaded_mode_of(case)
     settings = case.damper
     extra = stroke_cases_of(case)
     if settings.mass_ratio is None:
-        return least_mass(load, case.target_peak_m_s2, max_mass_ratio=settings.max_mass_ratio,
+        return least_mass(load, target, max_mass_ratio=settings.max_mass_ratio,
                           max_stroke_m=settings.max_stroke_m, stroke_loads=extra)
     tuning = tune(load, settings.mass_ratio, objective=settings.objective,
                   max_stroke_m=settings.max_stroke_m, stroke_loads=extra)
     design = evaluate_tmd(load, TunedMassDamper(settings.mass_ratio, tuning.frequency_ratio,
-                                                tuning.damping_ratio), case.target_peak_m_s2)
+                                                tuning.damping_ratio), target)
     met = bool(design.meets_target)
     verdict = "meets" if met else "does not meet"
     return Sizing(design, met, "fixed mass ratio", (
         f"at the fixed mass ratio {settings.mass_ratio:g}, the {settings.objective}-optimal "
-        f"tuning {verdict} the target {case.target_peak_m_s2:.4g} m/s^2 "
+        f"tuning {verdict} the target {target:.4g} m/s^2 "
         f"(peak {design.peak_acceleration_m_s2:.4g} m/s^2)"))
+
+
+def sized_for_peak_method(case: Case) -> tuple[Sizing, dict | None]:
+    """The sizing by the case's peak method, with the simulated loop's record if it ran.
+
+    Parameters
+    ----------
+    case : Case
+        The validated case.
+
+    Returns
+    -------
+    sizing : Sizing
+        For ``"simulated"``, the design's peak and verdict are the simulated
+        statistic's (:func:`tmd.simulated_sizing.size_for_simulated_peak`).
+    correction : dict or None
+        The ``peak_correction`` block: statistic, records, seed and every pass.
+    """
+    if peak_method(case) != "simulated":
+        return size_damper(case), None
+    from tmd.simulated_sizing import size_for_simulated_peak
+    from tmd.simulation import SimulationSettings
+
+    table = case.tables.simulation
+    settings = SimulationSettings(duration_s=case.duration_s) if table is None else \
+        SimulationSettings(records=table.records, seed=table.seed,
+                           time_step_s=table.time_step_s, duration_s=case.duration_s)
+    fractile = case.tables.target.peak_fractile
+    sizing, steps = size_for_simulated_peak(
+        loaded_mode_of(case), case.target_peak_m_s2, lambda t: size_damper(case, t), settings,
+        fractile=fractile)
+    return sizing, {
+        "statistic": "mean" if fractile is None else "fractile",
+        "records": settings.records, "seed": settings.seed, "duration_s": settings.duration_s,
+        "passes": [{"iteration": p.iteration, "spectral_target_m_s2": p.spectral_target_m_s2,
+                    "mass_ratio": p.mass_ratio, "spectral_peak_m_s2": p.spectral_peak_m_s2,
+                    "simulated_peak_m_s2": p.simulated_peak_m_s2,
+                    "simulated_to_spectral_ratio": p.ratio} for p in steps]}
+
+
+def peak_estimates(load: LoadedMode, design: TmdDesign | None) -> dict:
+    """Davenport's and Vanmarcke's peak acceleration of a design, side by side.
+
+    Parameters
+    ----------
+    load : LoadedMode
+        The design load.
+    design : TmdDesign or None
+        The TMD (None: the bare building).
+
+    Returns
+    -------
+    dict
+        ``davenport_peak_acceleration_m_s2`` and
+        ``vanmarcke_peak_acceleration_m_s2`` (two-sided, max |a|).
+    """
+    from dataclasses import replace
+
+    from tmd.dampers.absorber import Absorbers
+
+    absorbers = Absorbers.none() if design is None else design.damper.absorbers(load.mode)
+    return {f"{method}_peak_acceleration_m_s2": float(
+        replace(load, peak_method=method).assess(absorbers).peak_acceleration_m_s2)
+        for method in ("davenport", "vanmarcke")}
+
+
+def load_name(case: Case, wind_load: WindLoad | None = None) -> str:
+    """The load in words, for warnings: "1-year wind (design load)" or the force spectrum file."""
+    if case.wind_loads:
+        period = (wind_load.return_period_years if wind_load is not None
+                  else case.target_return_period_years)
+        design = " (design load)" if period == case.target_return_period_years else ""
+        return f"{period:g}-year wind{design}"
+    source = getattr(case.spectrum, "source", "") or "the force spectrum"
+    return f"design load ({Path(source).name})"
 
 
 def load_name(case: Case, wind_load: WindLoad | None = None) -> str:
@@ -182,14 +290,19 @@ def design_job(case: Case) -> dict:
 
     def build():
         load = loaded_mode_of(case)
-        sizing = size_damper(case)
+        sizing, correction = sized_for_peak_method(case)
         result = _header(case) | {
             "target": _target_block(case),
             "bare": _bare_block(load),
             "design": design_block(sizing.design) if sizing.design else None,
             "sizing": {"meets_target": sizing.meets_target, "governed_by": sizing.governed_by,
-                       "message": sizing.message},
+                       "message": sizing.message, "peak_method": peak_method(case)},
+            "peak_estimates": peak_estimates(load, sizing.design),
         }
+        if correction is not None:
+            result["peak_correction"] = correction
+            result["peak_estimates"]["simulated_peak_acceleration_m_s2"] = \
+                correction["passes"][-1]["simulated_peak_m_s2"]
         if case.wind_loads:
             result["by_return_period"] = by_return_period(case, sizing.design)
         if sizing.design is not None:

@@ -16,9 +16,12 @@ from scipy.optimize.elementwise import find_root
 
 from tmd.dampers.absorber import Absorbers
 from tmd.notes import LoadWarning, current_load
-from tmd.peak import davenport_peak_factor, peak_factor_is_held
+from tmd.peak import davenport_peak_factor, peak_factor_is_held, vanmarcke_peak_factor
 from tmd.response import RESPONSES, TOP_DECADE_WARNING, Moments, spectral_response
 from tmd.spectra import ForceSpectrum
+
+# Spectral peak estimates; "simulated" (tmd.simulated_sizing) sizes by records.
+PEAK_METHODS = ("davenport", "vanmarcke")
 
 
 class UpperEdgeWarning(LoadWarning):
@@ -90,15 +93,45 @@ class Assessment:
     peak_factor_held: np.ndarray
 
 
-def _peak(moments: Moments, duration_s):
+def peak_factor(moments: Moments, duration_s, peak_method: str = "davenport"):
+    """Peak factor of a response and its up-crossing rate, by the chosen method.
+
+    Parameters
+    ----------
+    moments : Moments
+        Spectral moments of the response (m1 is needed for ``"vanmarcke"``).
+    duration_s : float
+        Averaging duration T [s].
+    peak_method : str
+        ``"davenport"``: Davenport's (1964) g from nu = sqrt(m2 / m0), the
+        tool's default; ``"vanmarcke"``: the mean of max |x| over T by
+        Vanmarcke's (1975) first-passage law with the bandwidth parameter q
+        (two-sided: comfort and stroke verdicts judge max |x|).
+
+    Returns
+    -------
+    g, nu : arrays
+        Peak factor [-] and up-crossing rate [Hz].
+    """
     with np.errstate(invalid="ignore", divide="ignore"):
         nu = np.nan_to_num(moments.upcrossing_hz)
-    return davenport_peak_factor(nu, duration_s) * moments.sigma, nu
+        if peak_method == "davenport":
+            return davenport_peak_factor(nu, duration_s), nu
+        if peak_method == "vanmarcke":
+            q = np.nan_to_num(moments.bandwidth, nan=1.0)
+            return vanmarcke_peak_factor(nu, q, duration_s, two_sided=True), nu
+    raise ValueError(f"peak_method = {peak_method!r}: allowed are {', '.join(PEAK_METHODS)}")
+
+
+def _peak(moments: Moments, duration_s, peak_method="davenport"):
+    g, nu = peak_factor(moments, duration_s, peak_method)
+    return g * moments.sigma, nu
 
 
 def assess(frequency_hz, modal_mass_kg, damping_ratio, absorbers: Absorbers,
            spectrum: ForceSpectrum, duration_s: float, *, shape_factor: float = 1.0,
-           warn: bool = False, responses=RESPONSES) -> Assessment:
+           warn: bool = False, responses=RESPONSES,
+           peak_method: str = "davenport") -> Assessment:
     """Rms and peak responses of a batch of designs.
 
     Parameters
@@ -122,6 +155,8 @@ def assess(frequency_hz, modal_mass_kg, damping_ratio, absorbers: Absorbers,
         Which of "displacement", "acceleration", "stroke", "force" to compute
         (the acceleration always is); the engine skips the others and their
         fields are None. Default: all.
+    peak_method : str
+        How peaks are estimated from the moments (:func:`peak_factor`).
 
     Returns
     -------
@@ -130,10 +165,12 @@ def assess(frequency_hz, modal_mass_kg, damping_ratio, absorbers: Absorbers,
     wanted = frozenset(responses) | {"acceleration"}
     r = spectral_response(frequency_hz, modal_mass_kg, damping_ratio, absorbers, spectrum,
                           responses=wanted)
-    peak_a, nu_a = _peak(r.acceleration, duration_s)
-    peak_r = _peak(r.stroke, duration_s)[0] if r.stroke is not None else None
-    peak_f = _peak(r.force, duration_s)[0] if r.force is not None else None
-    peak_x = _peak(r.displacement, duration_s)[0] if r.displacement is not None else None
+    g_a, nu_a = peak_factor(r.acceleration, duration_s, peak_method)
+    peak_a = g_a * r.acceleration.sigma
+    peak_r = _peak(r.stroke, duration_s, peak_method)[0] if r.stroke is not None else None
+    peak_f = _peak(r.force, duration_s, peak_method)[0] if r.force is not None else None
+    peak_x = (_peak(r.displacement, duration_s, peak_method)[0] if r.displacement is not None
+              else None)
     share0, share2 = r.acceleration_top_decade
     if warn and np.any(np.maximum(share0, share2) > TOP_DECADE_WARNING):
         warnings.warn(UpperEdgeWarning(current_load(), {
@@ -144,7 +181,7 @@ def assess(frequency_hz, modal_mass_kg, damping_ratio, absorbers: Absorbers,
         peak_displacement_m=peak_x,
         sigma_acceleration_m_s2=shape_factor * r.acceleration.sigma,
         peak_acceleration_m_s2=shape_factor * peak_a,
-        peak_factor=davenport_peak_factor(nu_a, duration_s),
+        peak_factor=g_a,
         upcrossing_hz=nu_a,
         sigma_stroke_m=r.stroke.sigma if r.stroke is not None else None,
         peak_stroke_m=peak_r,

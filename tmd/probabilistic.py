@@ -568,5 +568,6 @@ def _peak_excess(loaded, damper, target, uncertainty, u_s, u_d, damping):
     m = loaded.mode
     absorbers = Absorbers.none(s.shape) if damper is None else damper.absorbers(m)
     a = assess(s * m.frequency_hz, m.modal_mass_kg, zeta, absorbers, loaded.spectrum,
-               loaded.duration_s, shape_factor=loaded.shape_factor, responses=("acceleration",))
+               loaded.duration_s, shape_factor=loaded.shape_factor, responses=("acceleration",),
+               peak_method=loaded.peak_method)
     return a.peak_acceleration_m_s2 / target - 1.0

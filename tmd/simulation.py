@@ -215,12 +215,12 @@ class ResponseStatistics:
             f"vanmarcke_peak_one_sided_{s}": self.vanmarcke_peak_one_sided,
             "upcrossing_hz": self.upcrossing_hz,
             "bandwidth": self.bandwidth,
-            "max_abs_mean_to_davenport": float(a.mean()) / self.davenport_peak,
-            "max_abs_mean_to_vanmarcke": float(a.mean()) / self.vanmarcke_peak_two_sided,
+            "max_abs_mean_to_davenport_ratio": float(a.mean()) / self.davenport_peak,
+            "max_abs_mean_to_vanmarcke_ratio": float(a.mean()) / self.vanmarcke_peak_two_sided,
         }
         if limit is not None:
             block[f"limit_{s}"] = limit
-            block["fraction_of_records_over_limit"] = float(np.mean(a > limit))
+            block["records_over_limit_fraction"] = float(np.mean(a > limit))
         return block
 
 
@@ -268,7 +268,8 @@ class Simulation:
 def simulate(frequency_hz: float, modal_mass_kg: float, damping_ratio: float,
              absorbers: Absorbers, spectrum, settings: SimulationSettings, *,
              shape_factor: float = 1.0, nonlinear: NonlinearAbsorber | None = None,
-             linear_damping_ratio: np.ndarray | None = None) -> Simulation:
+             linear_damping_ratio: np.ndarray | None = None,
+             period_s: float | None = None) -> Simulation:
     """Simulate seeded records of one design under one modal force spectrum.
 
     Parameters
@@ -292,6 +293,10 @@ def simulate(frequency_hz: float, modal_mass_kg: float, damping_ratio: float,
         Absorber damping ratios of the integrated system (0 for a liquid
         column whose damping is all head loss); defaults to those of
         ``absorbers``.
+    period_s : float, optional
+        Period of the force records, a whole number (>= 4) of records [s];
+        given, the same seed gives the same force records for any design
+        (common random numbers); default: :func:`resolving_period_s`.
 
     Returns
     -------
@@ -318,8 +323,8 @@ def simulate(frequency_hz: float, modal_mass_kg: float, damping_ratio: float,
             absorbers.mass_kg, absorbers.frequency_hz, np.asarray(zeta, float),
             absorbers.coupling))
     moments = spectral_response(frequency_hz, modal_mass_kg, damping_ratio, absorbers, spectrum)
-    half_width = _narrowest_half_width(linear)
-    period = resolving_period_s(settings.duration_s, half_width)
+    period = period_s if period_s is not None else resolving_period_s(
+        settings.duration_s, narrowest_half_width_hz(linear))
     per_period = int(round(period / settings.duration_s))
     n_periods = -(-settings.records // per_period)
     samples = int(round(period / dt))
@@ -409,7 +414,19 @@ def _rms_interval(mean_squares: np.ndarray):
     return math.sqrt(mean), (math.sqrt(max(mean - half, 0.0)), math.sqrt(mean + half))
 
 
-def _narrowest_half_width(system: StateSpace) -> float:
+def narrowest_half_width_hz(system: StateSpace) -> float:
+    """Smallest half-power half-width |Re p| / (2 pi) of the system's oscillating poles [Hz].
+
+    Parameters
+    ----------
+    system : StateSpace
+        The linear system.
+
+    Returns
+    -------
+    float
+        zeta f of the most lightly damped resonance [Hz].
+    """
     poles = np.linalg.eigvals(system.a)
     oscillating = poles[poles.imag > 0]
     return float(np.min(np.abs(oscillating.real))) / (2.0 * np.pi)

@@ -171,7 +171,8 @@ def detuned_sweep(load: LoadedMode, design: dict, factors: np.ndarray) -> Sweep:
                                        np.full(shape, design["damping_ratio"]))
     m = load.mode
     a = assess(s * m.frequency_hz, m.modal_mass_kg, m.damping_ratio, absorbers, load.spectrum,
-               load.duration_s, shape_factor=load.shape_factor)
+               load.duration_s, shape_factor=load.shape_factor,
+               peak_method=load.peak_method)
     return Sweep(s, np.asarray(a.peak_acceleration_m_s2, dtype=float))
 
 

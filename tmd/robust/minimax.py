@@ -299,7 +299,8 @@ class _BandProblem:
             np.exp(pts[:, 1])[:, None, None])
         a = assess(self.s * m.frequency_hz, m.modal_mass_kg, self.zeta_s, absorbers,
                    self.loaded.spectrum, self.loaded.duration_s,
-                   shape_factor=self.loaded.shape_factor, responses=("acceleration", "stroke"))
+                   shape_factor=self.loaded.shape_factor, responses=("acceleration", "stroke"),
+                   peak_method=self.loaded.peak_method)
         log_peak = np.log(a.peak_acceleration_m_s2)
         log_stroke = np.log(a.peak_stroke_m[..., 0])
         # A copy: SLSQP may hand over its own buffer and change it in place.

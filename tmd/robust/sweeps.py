@@ -294,7 +294,8 @@ def assess_structure_factors(loaded: LoadedMode, damper: TunedMassDamper | None,
     m = loaded.mode
     absorbers = Absorbers.none(s.shape) if damper is None else damper.absorbers(m)
     a = assess(s * m.frequency_hz, m.modal_mass_kg, zeta_s, absorbers, loaded.spectrum,
-               loaded.duration_s, shape_factor=loaded.shape_factor)
+               loaded.duration_s, shape_factor=loaded.shape_factor,
+               peak_method=loaded.peak_method)
     return a, zeta_s
 
 

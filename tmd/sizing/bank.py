@@ -170,7 +170,8 @@ class _Problem:
     def assess(self, mu, keep) -> Assessment:
         m, c = self.loaded.mode, self.loaded
         return assess(self.fs, m.modal_mass_kg, m.damping_ratio, self.absorbers(mu, keep),
-                      c.spectrum, c.duration_s, shape_factor=c.shape_factor)
+                      c.spectrum, c.duration_s, shape_factor=c.shape_factor,
+                      peak_method=c.peak_method)
 
     def ratios(self, mu, keep):
         """Worst peak / target and worst stroke / limit over the scenarios."""

@@ -271,7 +271,8 @@ def _split_case(loaded: LoadedMode, mass_ratio: float, coupling: float):
     scale = 1.0 + (1.0 - coupling**2) * mass_ratio
     root = math.sqrt(scale)
     mode = Mode(m.frequency_hz / root, m.modal_mass_kg * scale, m.damping_ratio / root)
-    split = LoadedMode(mode, loaded.spectrum, loaded.duration_s, loaded.shape_factor)
+    split = LoadedMode(mode, loaded.spectrum, loaded.duration_s, loaded.shape_factor,
+                       loaded.peak_method)
     return split, coupling**2 * mass_ratio / scale
 
 
@@ -335,7 +336,8 @@ def _assess(loaded: LoadedMode, absorbers: Absorbers, frequency_hz=None) -> Asse
     m = loaded.mode
     fs = m.frequency_hz if frequency_hz is None else frequency_hz
     return assess(fs, m.modal_mass_kg, m.damping_ratio, absorbers, loaded.spectrum,
-                  loaded.duration_s, shape_factor=loaded.shape_factor)
+                  loaded.duration_s, shape_factor=loaded.shape_factor,
+                  peak_method=loaded.peak_method)
 
 
 def _stroke_m2(loaded: LoadedMode, absorbers: Absorbers, frequency_hz=None) -> np.ndarray:

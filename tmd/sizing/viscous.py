@@ -160,7 +160,7 @@ def _assess_damped(loaded: LoadedMode, damping_ratio, frequency_hz=None):
     zeta = np.asarray(damping_ratio, float)
     return assess(fs, m.modal_mass_kg, zeta, Absorbers.none(np.broadcast_shapes(
         zeta.shape, np.shape(fs))), loaded.spectrum, loaded.duration_s,
-        shape_factor=loaded.shape_factor)
+        shape_factor=loaded.shape_factor, peak_method=loaded.peak_method)
 
 
 def peak_acceleration_with_dashpot(loaded: LoadedMode, added_damping_ratio: float, frequency_scale):
