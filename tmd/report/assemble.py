@@ -282,6 +282,11 @@ class _Report:
             blocks.append(self._table(key_value_table(
                 "design", "Damper specification (translational TMD)", design, "design",
                 keys=DESIGN_REPORT_ORDER, labels=DAMPER_LABELS)))
+            if "peak_estimates" in r:
+                method = r.get("target", {}).get("peak_method", "davenport")
+                blocks.append(self._table(key_value_table(
+                    "peak_estimates", f"Peak acceleration of this design by each estimate "
+                    f"(the verdict uses {method})", r["peak_estimates"], "peak_estimates")))
             band, source = self._band()
             blocks.append(self._table(retuning_table(design, band, source)))
             entries = r.get("by_return_period") or []
