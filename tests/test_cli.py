@@ -36,7 +36,8 @@ def test_design_writes_results_with_the_documented_keys(design_run):
         "stiffness_n_per_m", "damping_n_s_per_m", "sigma_acceleration_m_s2",
         "peak_acceleration_m_s2", "sigma_stroke_m", "peak_stroke_m", "peak_damper_force_n",
         "effective_damping_ratio", "meets_target"}
-    assert set(data["target"]) == {"peak_acceleration_m_s2", "duration_s"}
+    assert set(data["target"]) == {"peak_acceleration_m_s2", "duration_s", "peak_method"}
+    assert data["target"]["peak_method"] == "davenport"
     assert data["case"]["inputs"]["mode"]["frequency_hz"] == 0.17
     assert data["cautions"] and "re-tuned" in " ".join(data["cautions"])
     # The summary shows milli-g on screen.
