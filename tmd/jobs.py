@@ -559,7 +559,7 @@ def simulation_job(case: Case, device: dict, settings, *, end_stop_travel_m: flo
                  "by_load": rows}
         return _header(case) | {"target": _target_block(case), "simulation": block}
 
-    result = _with_notes(build)
+    result = _with_notes(build, case)
     return result, holder
 
 
