@@ -260,17 +260,6 @@ def load_name(case: Case, wind_load: WindLoad | None = None) -> str:
     return f"design load ({Path(source).name})"
 
 
-def load_name(case: Case, wind_load: WindLoad | None = None) -> str:
-    """The load in words, for warnings: "1-year wind (design load)" or the force spectrum file."""
-    if case.wind_loads:
-        period = (wind_load.return_period_years if wind_load is not None
-                  else case.target_return_period_years)
-        design = " (design load)" if period == case.target_return_period_years else ""
-        return f"{period:g}-year wind{design}"
-    source = getattr(case.spectrum, "source", "") or "the force spectrum"
-    return f"design load ({Path(source).name})"
-
-
 def _with_notes(build: Callable[[], dict], case: Case | None = None) -> dict:
     """Run a job's ``build``; add its warnings (one per cause and load) and the cautions.
 
