@@ -81,7 +81,10 @@ def test_end_stops_far_away_are_never_touched_and_close_ones_are():
     # per second; the stop must be met many times an hour.
     assert s_near.stop_contacts_per_hour > 100
     assert s_near.stroke.maxima_abs.max() < s_far.stroke.maxima_abs.max()
-    assert s_far.step_check_change < 0.01
+    # Stops that are never reached leave the exact linear history as it is;
+    # where they are reached, halving the step changes the stroke rms < 1%.
+    assert s_far.step_check_change is None
+    assert s_near.step_check_change < 0.01
 
 
 def test_same_seed_same_output_other_seed_other_output():
@@ -101,3 +104,32 @@ def test_same_seed_same_output_other_seed_other_output():
 def test_unusable_settings_are_refused_naming_the_setting(settings, word):
     with pytest.raises(SimulationInputError, match=word):
         simulate(FS, MASS, ZETA, TMD, WhiteSpectrum(1e9, 0.0, 10.0), settings)
+
+
+def test_liquid_column_head_loss_matches_its_statistical_linearisation():
+    # A tuned liquid column (head loss 0.5 rho A xi |y'| y') against its
+    # equivalent linear damping from Gaussian statistical linearisation
+    # (zeta_eq = xi sigma_y' / (sqrt(2 pi) L omega_l), tmd.dampers.liquid_column):
+    # the rms of the nonlinear simulation agrees within a few percent, as the
+    # linearisation is exact only for a Gaussian liquid velocity (common
+    # practice; the issue measured 1.3% on the compare demo). 5% here, for
+    # that and 3 sampling standard errors of 12 records of 300 s.
+    from tmd.design import LoadedMode
+    from tmd.dampers.liquid_column import column_damping_gain, column_length_m
+    from tmd.sizing.liquid_column import velocity_proportional_fixed_point
+    from tmd.structure import Mode
+
+    mass, f_l, alpha, xi = 0.03 * MASS, 0.985 * FS, 0.7, 20.0
+    length = float(column_length_m(f_l))
+    loaded = LoadedMode(Mode(FS, MASS, ZETA), LOAD)
+    zeta, _ = velocity_proportional_fixed_point(loaded, mass, f_l, alpha,
+                                                float(column_damping_gain(xi, length, f_l)))
+    equivalent = Absorbers(np.array([mass]), np.array([f_l]), np.asarray(zeta).reshape(1),
+                           np.array([alpha]))
+    loss = NonlinearAbsorber(np.array([xi / (2 * length)]), np.full(1, np.inf))
+    few = SimulationSettings(records=12, duration_s=300.0, seed=8, substeps=2)
+    sim = simulate(FS, MASS, ZETA, equivalent, LOAD, few,
+                   nonlinear=loss, linear_damping_ratio=np.zeros(1))
+    assert sim.stroke.sigma == pytest.approx(sim.stroke.sigma_spectral, rel=0.05)
+    assert sim.acceleration.sigma == pytest.approx(sim.acceleration.sigma_spectral, rel=0.05)
+    assert sim.step_check_change < 0.01

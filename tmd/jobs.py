@@ -590,11 +590,17 @@ def _simulated_device(load: LoadedMode, device: dict, end_stop_travel_m):
 
 def _simulated_design(sim, limit, case: Case, freeboard_m):
     """The damped statistics block of one load."""
+    import numpy as np
+
     stroke_limit = case.damper.max_stroke_m
     block = {"acceleration": sim.acceleration.summary("m_s2", limit),
              "stroke": sim.stroke.summary("m", freeboard_m if freeboard_m is not None
                                           else stroke_limit),
              "damper_force": sim.force.summary("n")}
+    if freeboard_m is not None:
+        # The liquid rises in a leg by its displacement along the column.
+        block["freeboard_m"] = freeboard_m
+        block["overflow_record_fraction"] = float(np.mean(sim.stroke.maxima_abs > freeboard_m))
     if sim.stop_contacts_per_hour is not None:
         block["end_stop_contacts_per_hour"] = sim.stop_contacts_per_hour
         block["records_with_end_stop_contact"] = sim.records_with_stop_contact

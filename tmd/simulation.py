@@ -344,6 +344,24 @@ def simulate(frequency_hz: float, modal_mass_kg: float, damping_ratio: float,
         if nonlinear is None:
             states = integrate_linear(linear, force, dt, x0)
             out = linear.outputs(states, force)
+        elif not np.any(nonlinear.head_loss_per_m):
+            # End-stops alone: the linear history is exact until the stroke
+            # first reaches a stop, so only the periods that reach one are
+            # integrated again with the nonlinear scheme.
+            states = integrate_linear(linear, force, dt, x0)
+            touched_periods = np.any(np.abs(states[:, :, 1:linear.n_absorbers + 1])
+                                     > nonlinear.stop_travel_m, axis=(1, 2))
+            rates = states @ linear.a.T + force[..., None] * linear.b
+            if touched_periods.any():
+                redo = np.flatnonzero(touched_periods)
+                states[redo], rates[redo] = integrate_nonlinear(
+                    integrated, nonlinear, force[redo], dt, x0[redo], substeps=settings.substeps)
+                if step_change is None:
+                    k = redo[:1]
+                    step_change = _step_check(integrated, nonlinear, force[k, :per_record + 1],
+                                              dt, settings.substeps, x0[k],
+                                              states[k, :per_record + 1, 1])
+            out = integrated.outputs(states, force, state_rate=rates)
         else:
             states, rates = integrate_nonlinear(integrated, nonlinear, force,
                                                 dt, x0,
