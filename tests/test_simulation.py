@@ -114,8 +114,8 @@ def test_liquid_column_head_loss_matches_its_statistical_linearisation():
     # linearisation is exact only for a Gaussian liquid velocity (common
     # practice; the issue measured 1.3% on the compare demo). 5% here, for
     # that and 3 sampling standard errors of 12 records of 300 s.
-    from tmd.design import LoadedMode
     from tmd.dampers.liquid_column import column_damping_gain, column_length_m
+    from tmd.design import LoadedMode
     from tmd.sizing.liquid_column import velocity_proportional_fixed_point
     from tmd.structure import Mode
 
