@@ -66,3 +66,38 @@ def test_bad_settings_exit_2_naming_the_option(design_file, extra, flag):
     assert result.exit_code == 2
     assert flag in result.output
     assert "Traceback" not in result.output
+
+
+def test_simulate_a_liquid_column_and_with_end_stops(tmp_path):
+    # A column row as `tmd compare` writes it (mass, frequency, alpha, xi and
+    # dimensions); its liquid length is the U-tube's 2 g / omega^2 at 0.16745 Hz.
+    row = {"option": "liquid-column", "mass_kg": 5.7e5, "frequency_hz": 0.16745,
+           "length_ratio": 0.7, "head_loss_coefficient": 20.0,
+           "dimensions": {"liquid_length_m": 17.718, "vertical_leg_height_m": 4.5,
+                          "vertical_liquid_height_m": 2.66}}
+    path = tmp_path / "compare.json"
+    path.write_text(json.dumps({"options": [row]}))
+    result = runner.invoke(app, ["simulate", str(DEMO), "--design-from", str(path), "--option",
+                                 "liquid-column", "--records", "10", "--duration-s", "120",
+                                 "--json"])
+    assert result.exit_code == 0, result.output
+    from tests.consistency import assert_consistent_results
+    data = json.loads(result.output)
+    assert_consistent_results(data)
+    design = data["simulation"]["by_load"][0]["design"]
+    assert design["freeboard_m"] == pytest.approx(4.5 - 2.66)
+    assert 0.0 <= design["overflow_record_fraction"] <= 1.0
+    assert design["step_halving_stroke_rms_change_fraction"] < 0.01
+
+
+def test_end_stops_report_contacts(design_file):
+    result = _run(design_file, "--end-stop-travel-m", "0.2", "--duration-s", "120", "--json")
+    assert result.exit_code == 0, result.output
+    from tests.consistency import assert_consistent_results
+    data = json.loads(result.output)
+    assert_consistent_results(data)
+    design = data["simulation"]["by_load"][0]["design"]
+    # A 0.2 m travel is under two rms strokes of this TMD (about 0.11 m
+    # each), so by Rice's crossing rate the stops are met many times an hour.
+    assert design["hourly_end_stop_contact_count"] > 10
+    assert design["stroke"]["max_abs_mean_m"] < 0.3

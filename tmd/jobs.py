@@ -602,8 +602,8 @@ def _simulated_design(sim, limit, case: Case, freeboard_m):
         block["freeboard_m"] = freeboard_m
         block["overflow_record_fraction"] = float(np.mean(sim.stroke.maxima_abs > freeboard_m))
     if sim.stop_contacts_per_hour is not None:
-        block["end_stop_contacts_per_hour"] = sim.stop_contacts_per_hour
-        block["records_with_end_stop_contact"] = sim.records_with_stop_contact
+        block["hourly_end_stop_contact_count"] = sim.stop_contacts_per_hour
+        block["end_stop_contact_record_fraction"] = sim.records_with_stop_contact
     if sim.step_check_change is not None:
-        block["step_halving_change_of_stroke_rms"] = sim.step_check_change
+        block["step_halving_stroke_rms_change_fraction"] = sim.step_check_change
     return block
