@@ -26,3 +26,10 @@ def demo_compare():
         warnings.simplefilter("ignore", UpperEdgeWarning)
         results = compare_job(case)
     return case, json.loads(to_json(results))
+
+@pytest.fixture(scope="session")
+def kestrel_case():
+    """The Kestrel Point demo case, loaded once (its wind model takes seconds)."""
+    from tmd.case import read_case
+
+    return read_case("cases/kestrel_point.toml")

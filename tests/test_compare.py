@@ -1,5 +1,6 @@
 """The options comparison on the demo case."""
 
+import json
 import warnings
 
 import pytest
@@ -75,3 +76,22 @@ def test_unknown_option_is_refused():
     case = read_case(CASE_FILE)
     with pytest.raises(ValueError, match="unknown option"):
         compare_options(loaded_mode_of(case), 0.1, enabled=["tmd", "flywheel"])
+
+
+def test_compare_runs_when_no_damper_is_needed():
+    # Issue 13, defect 2: Harbourline with target 0.25 (bare 0.2125) failed with
+    # "Array must not contain infs or NaNs" from the liquid options.
+    import dataclasses
+
+    from tmd.jobs import compare_job
+    from tmd.outputs import to_json
+
+    case = dataclasses.replace(read_case(CASE_FILE), target_peak_m_s2=0.25)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        results = json.loads(to_json(compare_job(case)))
+    assert_consistent_results(results)
+    for row in results["options"]:
+        assert row["meets_target"] is True and not row["mass_kg"]
+        assert row["peak_acceleration_m_s2"] == pytest.approx(
+            results["bare"]["peak_acceleration_m_s2"], rel=1e-12)  # the bare building itself

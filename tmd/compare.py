@@ -41,12 +41,13 @@ from tmd.defaults import FREQUENCY_BAND, MAX_MASS_RATIO
 from tmd.design import LoadedMode, Sizing, TmdDesign, least_mass
 from tmd.performance import assess, effective_damping_ratio
 from tmd.registry import OPTION_NAMES
-from tmd.robust import band_maximum, peak_acceleration_band_max
+from tmd.robust import band_maximum, peak_acceleration_band_max, structure_damping_ratios
 from tmd.sizing.bank import BankSettings, size_tmd_bank
 from tmd.sizing.liquid_column import size_liquid_column, velocity_proportional_fixed_point
 from tmd.sizing.pendulum import pendulum_design
 from tmd.sizing.sloshing import size_sloshing_tanks
 from tmd.sizing.viscous import ViscousSettings, peak_acceleration_with_dashpot, size_added_damping
+from tmd.verdict import meets_target
 
 BAND_POINTS = 41
 
@@ -127,7 +128,11 @@ def compare_options(loaded: LoadedMode, target_peak_m_s2: float, *, enabled=None
         raise ValueError(f"unknown option(s) {unknown}; known: {list(OPTIONS)}")
     job = _Job(loaded, target_peak_m_s2, max_mass_ratio, max_stroke_m, frequency_band,
                settings or OptionSettings())
-    return [{"option": name} | OPTIONS[name](job) for name in names]
+    rows = [{"option": name} | OPTIONS[name](job) for name in names]
+    for row in rows:
+        # Every verdict is the one comparison on the number the row reports.
+        row["meets_target"] = meets_target(row["peak_acceleration_m_s2"], target_peak_m_s2)
+    return rows
 
 
 # --- rows ---------------------------------------------------------------------
@@ -166,12 +171,16 @@ def _tmd_like(job: _Job, sizing: Sizing, design: TmdDesign | None) -> dict:
 def _bank_row(job: _Job) -> dict:
     bank = size_tmd_bank(job.loaded, job.target, max_mass_ratio=job.max_mass_ratio,
                          max_stroke_m=job.max_stroke_m, settings=job.settings.bank)
+    if bank.governed_by == "bare":
+        return _empty_row(job, bank.message) | {"dampers": [], "pruned_dampers": [],
+                                                 "convex_steps": 0}
     absorbers = bank.absorbers
     a = job.loaded.assess(absorbers)
     m = job.loaded.mode
 
     def peaks(s):
-        return assess(s * m.frequency_hz, m.modal_mass_kg, m.damping_ratio, absorbers,
+        return assess(s * m.frequency_hz, m.modal_mass_kg,
+                      structure_damping_ratios(job.loaded, s), absorbers,
                       job.loaded.spectrum, job.loaded.duration_s,
                       shape_factor=job.loaded.shape_factor, responses=("acceleration",),
                       peak_method=job.loaded.peak_method).peak_acceleration_m_s2
@@ -179,13 +188,15 @@ def _bank_row(job: _Job) -> dict:
     stroke = float(np.max(a.peak_stroke_m)) if bank.mass_kg.size else 0.0
     return _measured(job, a, bank.mass_ratio, peaks) | {
         "peak_stroke_m": stroke, "meets_target": bank.meets_target, "message": bank.message,
-        "dimensions": {}, "dampers": bank.dampers,
+        "dimensions": {}, "dampers": bank.dampers, "pruned_dampers": list(bank.pruned),
         "convex_steps": max(len(bank.history) - 1, 0)}
 
 
 def _column_row(job: _Job) -> dict:
     d = size_liquid_column(job.loaded, job.target, max_mass_ratio=job.max_mass_ratio,
                            settings=job.settings.column)
+    if d.governed_by == "bare":
+        return _empty_row(job, d.message) | _NO_LIQUID
     a = job.loaded.assess(d.absorbers())
 
     def peaks(s):
@@ -211,6 +222,8 @@ def _column_row(job: _Job) -> dict:
 def _tank_row(job: _Job) -> dict:
     d = size_sloshing_tanks(job.loaded, job.target, max_mass_ratio=job.max_mass_ratio,
                             settings=job.settings.tank)
+    if d.governed_by == "bare":
+        return _empty_row(job, d.message) | _NO_LIQUID
     a = job.loaded.assess(d.absorbers())
 
     def peaks(s):
@@ -282,6 +295,11 @@ def _measured(job: _Job, a, mass_ratio, peaks) -> dict:
     }
 
 
+# A liquid option that is not needed: no liquid, so no geometry or tuning.
+_NO_LIQUID = {"participating_mass_kg": 0.0, "rigid_mass_kg": 0.0, "frequency_hz": None,
+              "equivalent_damping_ratio": None}
+
+
 def _empty_row(job: _Job, message: str) -> dict:
     bare = peak_acceleration_band_max(job.loaded, None, 0.0).peak_acceleration_m_s2
     return {"mass_kg": 0.0, "mass_ratio": 0.0, "peak_acceleration_m_s2": float(bare),
@@ -289,4 +307,5 @@ def _empty_row(job: _Job, message: str) -> dict:
             "effective_damping_ratio": job.loaded.mode.damping_ratio,
             "peak_acceleration_band_max_m_s2": float(peak_acceleration_band_max(
                 job.loaded, None, job.band).peak_acceleration_m_s2),
-            "meets_target": True, "message": message, "dimensions": {}}
+            "meets_target": meets_target(bare, job.target), "message": message,
+            "dimensions": {}}

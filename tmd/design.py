@@ -25,18 +25,20 @@ from scipy.optimize import brentq, minimize
 from tmd.dampers.absorber import Absorbers, single_tmd
 from tmd.dampers.tuned_mass import TunedMassDamper, warburton_white_force_tuning
 from tmd.defaults import DURATION_S
+from tmd.errors import BracketError, NumericalFailure
 from tmd.performance import assess, effective_damping_ratio
 from tmd.registry import OBJECTIVES, STATISTICS
 from tmd.schema import BareResponse, TmdDesign
 from tmd.spectra import ForceSpectrum
 from tmd.structure import Mode
+from tmd.verdict import meets_target
 
 FREQUENCY_RATIO_BOUNDS = (0.5, 1.5)
 DAMPING_RATIO_BOUNDS = (1e-3, 0.6)
 _STEP = 1e-6  # central-difference step in (f_d/f_s, ln zeta_d)
 
 
-class DesignError(RuntimeError):
+class DesignError(NumericalFailure):
     """The optimiser failed numerically (maps to exit code 1)."""
 
 
@@ -59,6 +61,9 @@ class LoadedMode:
         phi(z_eval), the mode shape where acceleration is judged [-].
     peak_method : str
         ``"davenport"`` or ``"vanmarcke"`` (:func:`tmd.performance.peak_factor`).
+    aerodynamic_damping_ratio : float
+        The part of ``mode.damping_ratio`` that is aerodynamic [-] (at the
+        nominal frequency); it scales as 1/s over a detuning band.
     """
 
     mode: Mode
@@ -66,6 +71,38 @@ class LoadedMode:
     duration_s: float = DURATION_S
     shape_factor: float = 1.0
     peak_method: str = "davenport"
+    aerodynamic_damping_ratio: float = 0.0
+
+    def structure_damping_ratio(self, frequency_factor):
+        """Structure damping ratio with the frequency scaled by s: the band definition [-].
+
+        Parameters
+        ----------
+        frequency_factor : float or array
+            s = f_s' / f_s [-], > 0.
+
+        Returns
+        -------
+        array
+            zeta_s(s) = (zeta_s - zeta_aero) + zeta_aero / s.
+
+        Notes
+        -----
+        The structure keeps M* and its structural damping ratio as s moves;
+        the aerodynamic damping ratio is inversely proportional to the
+        natural frequency, as in EN 1991-1-4 (F.18),
+        delta_a = c_f rho b v_m / (2 n_1 m_e). Every detuning band of every
+        job (sweeps, band maxima, robust and probabilistic designs, option
+        comparison) uses this one definition.
+
+        References
+        ----------
+        EN 1991-1-4:2005, Annex F.5, expression (F.18).
+        """
+        s = np.asarray(frequency_factor, float)
+        aero, zeta = self.aerodynamic_damping_ratio, self.mode.damping_ratio
+        # s = 1 is the nominal mode itself, to the last bit.
+        return np.where(s == 1.0, zeta, zeta - aero + aero / s)
 
     def assess(self, absorbers, **kw):
         m = self.mode
@@ -89,8 +126,10 @@ class Sizing:
 
     ``governed_by`` is "target" (the least mass meets the target exactly),
     "stroke" (the stroke limit decides the least mass or the best reachable),
-    "mass" (even max_mass_ratio cannot reach the target) or "bare" (the bare
-    building meets the target, no damper needed).
+    "mass" (even max_mass_ratio cannot reach the target), "minimum" (the
+    smallest mass ratio searched already meets the target) or "bare" (the
+    bare building meets the target, no damper needed). ``meets_target`` is
+    the design's own verdict (:func:`tmd.verdict.meets_target` on its peak).
     """
 
     design: TmdDesign | None
@@ -126,7 +165,7 @@ def evaluate_tmd(loaded: LoadedMode, damper: TunedMassDamper,
         peak_stroke_m=float(a.peak_stroke_m[0]), peak_damper_force_n=float(a.peak_damper_force_n),
         sigma_displacement_m=float(a.sigma_displacement_m), effective_damping_ratio=zeta_eff,
         added_damping_ratio=zeta_eff - m.damping_ratio,
-        meets_target=None if target_peak_m_s2 is None else bool(peak <= target_peak_m_s2),
+        meets_target=None if target_peak_m_s2 is None else meets_target(peak, target_peak_m_s2),
     )
 
 
@@ -284,42 +323,58 @@ def least_mass(loaded: LoadedMode, target_peak_m_s2: float, *, max_mass_ratio: f
         At a "target"-governed answer |peak / target - 1| < 1e-4.
     """
     bare = bare_response(loaded)
-    if bare.peak_acceleration_m_s2 <= target_peak_m_s2:
+    if meets_target(bare.peak_acceleration_m_s2, target_peak_m_s2):
         return Sizing(None, True, "bare", (
             f"the bare building's peak acceleration {bare.peak_acceleration_m_s2:.4g} m/s^2 "
             f"already meets the target {target_peak_m_s2:.4g} m/s^2: no damper is needed"))
+    tunings, designs = {}, {}
 
     def best(mu):
-        return tune(loaded, mu, max_stroke_m=max_stroke_m, stroke_loads=stroke_loads)
+        # One tuning per mass ratio: the answer is the tuning the search saw.
+        if mu not in tunings:
+            tunings[mu] = tune(loaded, mu, max_stroke_m=max_stroke_m, stroke_loads=stroke_loads)
+        return tunings[mu]
+
+    def design(mu):
+        if mu not in designs:
+            designs[mu] = _design_at(loaded, mu, best(mu), target_peak_m_s2)
+        return designs[mu]
 
     top = best(max_mass_ratio)
-    if top.value > target_peak_m_s2:
+    if not meets_target(top.value, target_peak_m_s2):
         limit = "stroke" if top.stroke_limited or not np.isfinite(top.value) else "mass"
-        design = _design_at(loaded, max_mass_ratio, top, target_peak_m_s2)
+        d = design(max_mass_ratio)
         reason = (f"the peak stroke limit of {max_stroke_m:g} m" if limit == "stroke"
                   else f"the largest mass ratio allowed, {max_mass_ratio:g}")
-        return Sizing(design, False, limit, (
+        return Sizing(d, d.meets_target, limit, (
             f"the target {target_peak_m_s2:.4g} m/s^2 cannot be met: the best achievable peak "
-            f"acceleration is {design.peak_acceleration_m_s2:.4g} m/s^2 at mass ratio "
+            f"acceleration is {d.peak_acceleration_m_s2:.4g} m/s^2 at mass ratio "
             f"{max_mass_ratio:g}, limited by {reason}"))
 
     mu = smallest_meeting_mass_ratio(lambda x: best(x).value, target_peak_m_s2,
-                                     min_mass_ratio, max_mass_ratio)
-    tuning = best(mu)
-    design = _design_at(loaded, mu, tuning, target_peak_m_s2)
+                                     min_mass_ratio, max_mass_ratio,
+                                     accept=lambda x: design(x).meets_target)
+    tuning, d = best(mu), design(mu)
+    met = d.meets_target
+    verdict = "meets" if met else "does not meet"
+    peak = f"peak {d.peak_acceleration_m_s2:.6g} m/s^2"
+    if mu == min_mass_ratio and tuning.value < target_peak_m_s2 * (1 - 1e-4):
+        return Sizing(d, met, "minimum", (
+            f"the smallest mass ratio searched, {mu:g}, already {verdict} the target "
+            f"{target_peak_m_s2:.4g} m/s^2 ({peak}); a lighter damper may do"))
     if abs(tuning.value / target_peak_m_s2 - 1.0) < 1e-4:
-        return Sizing(design, True, "target", (
-            f"least mass ratio {mu:.5g} meets the target {target_peak_m_s2:.4g} m/s^2"
-            + (" with the stroke limit active" if tuning.stroke_limited else "")))
+        return Sizing(d, met, "target", (
+            f"least mass ratio {mu:.5g} {verdict} the target {target_peak_m_s2:.4g} m/s^2 "
+            f"({peak})" + (" with the stroke limit active" if tuning.stroke_limited else "")))
     # Below this mass no tuning keeps the stroke within its limit: the stroke
     # limit, not the acceleration target, sets the least mass.
-    return Sizing(design, True, "stroke", (
+    return Sizing(d, met, "stroke", (
         f"least mass ratio {mu:.5g} is set by the peak stroke limit of {max_stroke_m:g} m; "
-        f"its peak acceleration {design.peak_acceleration_m_s2:.4g} m/s^2 is below the target "
-        f"{target_peak_m_s2:.4g} m/s^2"))
+        f"its {peak} {verdict} the target {target_peak_m_s2:.4g} m/s^2"))
 
 
-def smallest_meeting_mass_ratio(best_value, target, min_mass_ratio, max_mass_ratio) -> float:
+def smallest_meeting_mass_ratio(best_value, target, min_mass_ratio, max_mass_ratio, *,
+                                accept=None) -> float:
     """Smallest mass ratio whose best achievable value meets ``target``.
 
     Parameters
@@ -330,19 +385,68 @@ def smallest_meeting_mass_ratio(best_value, target, min_mass_ratio, max_mass_rat
     target : float
         The value to reach [m/s^2].
     min_mass_ratio, max_mass_ratio : float
-        Bracket [-]; ``best_value`` must exceed the target at the lower end
-        and meet it at the upper.
+        Search range [-]; ``best_value`` must meet the target at the upper
+        end. A lower end that already meets it is the answer.
+    accept : callable, optional
+        mu -> bool, the final verdict on the design at mu when it is judged
+        on another evaluation than ``best_value`` (e.g. the design's own
+        engine call); the smallest searched mass ratio it accepts is returned.
+
+    Returns
+    -------
+    float
+        A mass ratio [-] whose value meets the target by
+        :func:`tmd.verdict.meets_target`: the end of Brent's final bracket
+        on the side that meets, never the root itself, which may lie an ulp
+        on the failing side.
+
+    Raises
+    ------
+    BracketError
+        When even ``max_mass_ratio`` does not meet the target (the callers
+        check this first and report it as an unmet target).
 
     Notes
     -----
     Brent's method (``scipy.optimize.brentq``) on best(mu) / target - 1, an
-    infeasible mass counting as +1 (on the side that fails).
+    infeasible mass counting as +1 (on the side that fails). Every value it
+    sees is kept; the answer is the smallest mass ratio whose value met.
     """
-    def gap(mu):
-        value = best_value(mu)
-        return value / target - 1.0 if np.isfinite(value) else 1.0
+    values: dict[float, float] = {}
+    rejected: set[float] = set()
 
-    return brentq(gap, min_mass_ratio, max_mass_ratio, xtol=1e-12, rtol=1e-10, maxiter=200)
+    def value(mu):
+        mu = float(mu)
+        if mu not in values:
+            values[mu] = float(best_value(mu))
+        return values[mu]
+
+    def gap(mu):
+        # The sign follows the verdict: a value an ulp above the target fails.
+        v = value(mu)
+        if not np.isfinite(v):
+            return 1.0
+        if float(mu) in rejected or not meets_target(v, target):
+            return max(v / target - 1.0, np.finfo(float).tiny)
+        return min(v / target - 1.0, 0.0)
+
+    if meets_target(value(min_mass_ratio), target):
+        if accept is None or accept(min_mass_ratio):
+            return float(min_mass_ratio)
+        rejected.add(float(min_mass_ratio))
+    if not meets_target(value(max_mass_ratio), target):
+        raise BracketError(
+            f"the least-mass search has no answer in mass ratios [{min_mass_ratio:g}, "
+            f"{max_mass_ratio:g}]: the best value at {max_mass_ratio:g} is "
+            f"{values[float(max_mass_ratio)]:.6g}, above the target {target:.6g}")
+    brentq(gap, min_mass_ratio, max_mass_ratio, xtol=1e-12, rtol=1e-10, maxiter=200)
+    meeting = sorted(mu for mu, v in values.items()
+                     if meets_target(v, target) and mu not in rejected)
+    for mu in meeting:
+        if accept is None or accept(mu):
+            return mu
+        rejected.add(mu)
+    return meeting[-1]
 
 
 def _design_at(loaded, mu, tuning: Tuning, target):

@@ -19,6 +19,7 @@ from tmd.defaults import FREQUENCY_BAND
 from tmd.design import LoadedMode, Sizing, TmdDesign, bare_response, evaluate_tmd, least_mass, tune
 from tmd.notes import DEFAULT_LOAD, about, collect
 from tmd.schema import CAUTIONS, SCHEMA_VERSION, design_block
+from tmd.verdict import meets_target
 
 
 def loaded_mode_of(case: Case, wind_load: WindLoad | None = None) -> LoadedMode:
@@ -31,8 +32,10 @@ def loaded_mode_of(case: Case, wind_load: WindLoad | None = None) -> LoadedMode:
     method = spectral_peak_method(case)
     if load is None:
         return LoadedMode(case.mode, case.spectrum, case.duration_s, case.shape_factor, method)
-    mode = case.mode.with_damping(case.mode.damping_ratio + load.aerodynamic_damping_ratio)
-    return LoadedMode(mode, load.spectrum, case.duration_s, case.shape_factor, method)
+    aero = load.aerodynamic_damping_ratio
+    mode = case.mode.with_damping(case.mode.damping_ratio + aero)
+    return LoadedMode(mode, load.spectrum, case.duration_s, case.shape_factor, method,
+                      aerodynamic_damping_ratio=aero)
 
 
 def peak_method(case: Case) -> str:
@@ -279,10 +282,20 @@ def design_job(case: Case) -> dict:
 
     def build():
         load = loaded_mode_of(case)
+        settings = robustness_settings(case)
+        bare = _bare_block(load)
         sizing, correction = sized_for_peak_method(case)
+        robust = None
+        if sizing.design is None:
+            # "No damper" must hold across the band too; otherwise size for it.
+            worst = _bare_band_maximum(load, settings.frequency_band)
+            bare |= {"peak_acceleration_band_max_m_s2": worst.peak_acceleration_m_s2,
+                     "worst_structure_frequency_factor": worst.structure_frequency_factor}
+            if not meets_target(worst.peak_acceleration_m_s2, case.target_peak_m_s2):
+                sizing, robust = _size_for_band(case, load, settings.frequency_band, worst)
         result = _header(case) | {
             "target": _target_block(case),
-            "bare": _bare_block(load),
+            "bare": bare,
             "design": design_block(sizing.design) if sizing.design else None,
             "sizing": {"meets_target": sizing.meets_target, "governed_by": sizing.governed_by,
                        "message": sizing.message, "peak_method": peak_method(case)},
@@ -296,29 +309,82 @@ def design_job(case: Case) -> dict:
             result["by_return_period"] = by_return_period(case, sizing.design)
         if sizing.design is not None:
             result |= extreme_checks(case, sizing.design, result.get("by_return_period"))
-        if case.tables.robustness is not None and sizing.design is not None:
-            result |= robustness_block(case, sizing.design.damper)
+            result |= robustness_block(case, sizing.design.damper, robust=robust)
+        else:
+            result |= _bare_sweeps(load, settings)
         return result
 
     return _with_notes(build, case)
 
 
-def _structure_damping(case: Case):
-    """zeta_s(s) for sweeps: aerodynamic damping scales with 1 / n_1 (EN 1991-1-4 F.5)."""
-    from tmd.robust import AerodynamicDamping
+def robustness_settings(case: Case) -> RobustnessTable:
+    """The case's [robustness] table; without one, its defaults with the sweeps only.
 
-    load = case.design_wind_load
-    if load is None or load.aerodynamic_damping_ratio == 0.0:
-        return None
-    return AerodynamicDamping(case.mode.damping_ratio, load.aerodynamic_damping_ratio)
+    The detuning sweeps and the band maximum run for every design (an
+    engineer always needs the sensitivity to detuning); the robust re-design
+    and the probabilistic study, the heavier parts, only when the case's
+    [robustness] table asks for them.
+    """
+    if case.tables.robustness is not None:
+        return case.tables.robustness
+    return RobustnessTable(robust_design=False)
 
 
-def robustness_block(case: Case, damper: TunedMassDamper) -> dict:
-    """Detuning sweeps, band maximum, robust and probabilistic designs of the case."""
+def _bare_band_maximum(load: LoadedMode, band: float):
+    from tmd.robust import peak_acceleration_band_max
+
+    return peak_acceleration_band_max(load, None, band)
+
+
+def _bare_sweeps(load: LoadedMode, settings: RobustnessTable) -> dict:
+    from tmd.robust import sweep_structure_frequency
+
+    return {"frequency_band": settings.frequency_band,
+            "sweep_bare": sweep_structure_frequency(load, None,
+                                                    sweep_range=settings.sweep_range)}
+
+
+def _size_for_band(case: Case, load: LoadedMode, band: float, worst):
+    """The least-mass TMD meeting the target across the band, when the bare building
+    meets it only at the nominal frequency (returns the Sizing and the RobustSizing)."""
+    from tmd.robust import robust_least_mass
+
+    robust = robust_least_mass(load, case.target_peak_m_s2, band,
+                               max_mass_ratio=case.damper.max_mass_ratio,
+                               max_stroke_m=case.damper.max_stroke_m)
+    design = robust.design
+    reason = (f"the bare building meets the target {case.target_peak_m_s2:.4g} m/s^2 at the "
+              f"nominal frequency but not across the band ±{band:g} (worst peak "
+              f"{worst.peak_acceleration_m_s2:.4g} m/s^2 at s = "
+              f"{worst.structure_frequency_factor:.4g}), so the damper is sized for the band: ")
+    if design is None:
+        return Sizing(None, True, "bare", reason + robust.message), robust
+    return Sizing(design, design.meets_target, "band", reason + robust.message), robust
+
+
+def robustness_block(case: Case, damper: TunedMassDamper, *, robust=None) -> dict:
+    """Detuning sweeps, band maximum, robust and probabilistic designs of the case.
+
+    Parameters
+    ----------
+    case : Case
+        The case; its [robustness] table, or the defaults of
+        :func:`robustness_settings`.
+    damper : TunedMassDamper
+        The design to study.
+    robust : tmd.robust.RobustSizing, optional
+        A robust design already sized (then it is reported, not re-sized).
+
+    Returns
+    -------
+    dict
+        The sweeps, band maximum and summary, plus ``robust_design`` and
+        ``probabilistic`` when asked for.
+    """
     from tmd.probabilistic import Distribution, Uncertainty
     from tmd.robust import robustness_study
 
-    r = case.tables.robustness
+    r = robustness_settings(case)
     uncertainty = None
     if r.probabilistic is not None:
         p = r.probabilistic
@@ -329,8 +395,8 @@ def robustness_block(case: Case, damper: TunedMassDamper) -> dict:
             loaded_mode_of(case), damper, case.target_peak_m_s2,
             frequency_band=r.frequency_band, sweep_range=r.sweep_range,
             robust_design=r.robust_design, max_mass_ratio=case.damper.max_mass_ratio,
-            max_stroke_m=case.damper.max_stroke_m,
-            structure_damping_ratio=_structure_damping(case), probabilistic=uncertainty)
+            max_stroke_m=case.damper.max_stroke_m, probabilistic=uncertainty,
+            robust_sizing=robust)
     study["robustness_summary"] = study.pop("summary")
     return study
 
@@ -339,7 +405,7 @@ def sweep_job(case: Case, damper: TunedMassDamper) -> dict:
     """Detuning sweeps of any given design (e.g. an as-built damper)."""
     from tmd.robust import design_sweeps
 
-    r = case.tables.robustness or RobustnessTable()
+    r = robustness_settings(case)
 
     def build():
         load = loaded_mode_of(case)
@@ -349,8 +415,7 @@ def sweep_job(case: Case, damper: TunedMassDamper) -> dict:
         }
         with about(f"detuning sweep on the {load_name(case)}"):
             return result | design_sweeps(load, damper, frequency_band=r.frequency_band,
-                                          sweep_range=r.sweep_range,
-                                          structure_damping_ratio=_structure_damping(case))
+                                          sweep_range=r.sweep_range)
 
     return _with_notes(build, case)
 

@@ -15,6 +15,7 @@ import numpy as np
 from scipy.optimize.elementwise import find_root
 
 from tmd.dampers.absorber import Absorbers
+from tmd.errors import NonFiniteResult, NumericalFailure
 from tmd.notes import LoadWarning, current_load
 from tmd.peak import davenport_peak_factor, peak_factor_is_held, vanmarcke_peak_factor
 from tmd.response import RESPONSES, TOP_DECADE_WARNING, Moments, spectral_response
@@ -66,6 +67,69 @@ class UpperEdgeWarning(LoadWarning):
             A hashable key.
         """
         return (type(self), self.load, self.values["f_max_hz"])
+
+
+class NoEffectiveDampingWarning(LoadWarning):
+    """No damping ratio of the bare mode gives the damped structure's rms acceleration.
+
+    Its values: ``missing`` (how many ratios have no value) and ``total``
+    (of how many) [-]; ``reason`` 1 (the damped response exceeds the bare
+    mode's at the lowest damping searched), 2 (it is below it at the
+    highest) or 0 (no convergence); ``sigma_m_s2`` the damped rms
+    acceleration and ``bare_sigma_m_s2`` the bare mode's at that end of the
+    search [m/s^2]; ``damping_ratio`` that end [-]; ``frequency_hz`` the
+    mode's and ``f_min_hz``, ``f_max_hz`` the load's range [Hz].
+    """
+
+    @classmethod
+    def text(cls, load, values, count):
+        """The warning in words (see :meth:`tmd.notes.LoadWarning.text`).
+
+        Parameters
+        ----------
+        load : str
+            The load it concerns.
+        values : dict of str to float
+            See the class.
+        count : int
+            How many evaluations raised it [-].
+
+        Returns
+        -------
+        str
+            One line.
+        """
+        v = values
+        head = (f"{load}: {int(v['missing'])} of {int(v['total'])} effective damping ratio(s) "
+                f"have no value (null)" + ("" if count == 1 else f", in {count} evaluations"))
+        if v["reason"] == 1:
+            return (f"{head}: the damped rms acceleration {v['sigma_m_s2']:.4g} m/s^2 exceeds "
+                    f"the bare mode's at any damping ratio down to {v['damping_ratio']:g} "
+                    f"({v['bare_sigma_m_s2']:.4g} m/s^2): the load (given on {v['f_min_hz']:g} "
+                    f"to {v['f_max_hz']:g} Hz) has little energy near the mode's "
+                    f"{v['frequency_hz']:.4g} Hz, where a damper mostly adds mass")
+        if v["reason"] == 2:
+            return (f"{head}: the damped rms acceleration {v['sigma_m_s2']:.4g} m/s^2 is below "
+                    f"the bare mode's even at damping ratio {v['damping_ratio']:g} "
+                    f"({v['bare_sigma_m_s2']:.4g} m/s^2)")
+        return f"{head}: the root search did not converge"
+
+    def key(self):
+        """Kind, load and reason.
+
+        Returns
+        -------
+        tuple
+            A hashable key.
+        """
+        return (type(self), self.load, self.values["reason"])
+
+
+# Effective damping ratios are searched in this range [-]: from far below any
+# structure's damping to just below critical (the engine's pole-clustered
+# grid is for underdamped modes), so that a missing value means the bare mode
+# cannot reproduce the response.
+EFFECTIVE_DAMPING_BRACKET = (1e-7, 0.99)
 
 
 @dataclass(frozen=True)
@@ -163,8 +227,18 @@ def assess(frequency_hz, modal_mass_kg, damping_ratio, absorbers: Absorbers,
     Assessment
     """
     wanted = frozenset(responses) | {"acceleration"}
-    r = spectral_response(frequency_hz, modal_mass_kg, damping_ratio, absorbers, spectrum,
-                          responses=wanted)
+    _require_finite(frequency_hz=frequency_hz, modal_mass_kg=modal_mass_kg,
+                    damping_ratio=damping_ratio, absorber_mass_kg=absorbers.mass_kg,
+                    absorber_frequency_hz=absorbers.frequency_hz,
+                    absorber_damping_ratio=absorbers.damping_ratio)
+    try:
+        r = spectral_response(frequency_hz, modal_mass_kg, damping_ratio, absorbers, spectrum,
+                              responses=wanted)
+    except np.linalg.LinAlgError as exc:
+        raise NumericalFailure(
+            f"the response computation failed ({exc}) for structure frequency "
+            f"{_span(frequency_hz)} Hz, modal mass {_span(modal_mass_kg)} kg, damping ratio "
+            f"{_span(damping_ratio)}, absorber masses {_span(absorbers.mass_kg)} kg") from exc
     g_a, nu_a = peak_factor(r.acceleration, duration_s, peak_method)
     peak_a = g_a * r.acceleration.sigma
     peak_r = _peak(r.stroke, duration_s, peak_method)[0] if r.stroke is not None else None
@@ -193,6 +267,26 @@ def assess(frequency_hz, modal_mass_kg, damping_ratio, absorbers: Absorbers,
     )
 
 
+def _span(values) -> str:
+    """'x' or 'x to y' for the values of an array, for messages."""
+    v = np.asarray(values, float)
+    if v.size == 0:
+        return "(none)"
+    lo, hi = np.nanmin(v), np.nanmax(v)
+    return f"{lo:.6g}" if lo == hi else f"{lo:.6g} to {hi:.6g}"
+
+
+def _require_finite(**inputs):
+    """Raise NonFiniteResult naming the first input of the engine that is NaN or infinite."""
+    for name, values in inputs.items():
+        v = np.asarray(values, float)
+        if not np.all(np.isfinite(v)):
+            bad = float(v[~np.isfinite(v)].ravel()[0])
+            raise NonFiniteResult(
+                f"the response computation was given {name} = {bad!r} (of {v.size} value(s)); "
+                "a derived quantity upstream is not finite")
+
+
 def bare_sigma_acceleration(frequency_hz, modal_mass_kg, damping_ratio, spectrum):
     """Rms acceleration [m/s^2] of the bare mode (no absorber) at the damper level."""
     zeta = np.asarray(damping_ratio, float)
@@ -202,7 +296,7 @@ def bare_sigma_acceleration(frequency_hz, modal_mass_kg, damping_ratio, spectrum
 
 
 def effective_damping_ratio(frequency_hz, modal_mass_kg, sigma_acceleration_m_s2, spectrum,
-                            *, bracket=(1e-5, 0.95)):
+                            *, bracket=EFFECTIVE_DAMPING_BRACKET):
     """Damping ratio at which the bare mode has a given rms acceleration.
 
     Parameters
@@ -213,12 +307,17 @@ def effective_damping_ratio(frequency_hz, modal_mass_kg, sigma_acceleration_m_s2
         Rms acceleration at the damper level of the damped structure [m/s^2].
     spectrum : ForceSpectrum
         The same load.
+    bracket : (float, float)
+        Range of damping ratios searched [-].
 
     Returns
     -------
     array
         zeta_eff [-] such that the bare structure with zeta_eff has the same
-        rms acceleration; NaN where no ratio inside ``bracket`` does.
+        rms acceleration; NaN where no ratio inside ``bracket`` does, with a
+        :class:`NoEffectiveDampingWarning` saying why (e.g. a load with
+        little energy near the mode's frequency, under which a damper's
+        added mass raises the response above the bare mode's at any damping).
 
     Notes
     -----
@@ -234,6 +333,26 @@ def effective_damping_ratio(frequency_hz, modal_mass_kg, sigma_acceleration_m_s2
         return np.log(bare_sigma_acceleration(f, m, np.exp(log_zeta), spectrum) / goal)
 
     lo, hi = np.log(bracket[0]), np.log(bracket[1])
-    result = find_root(gap, (np.full(target.shape, lo), np.full(target.shape, hi)),
-                       args=(fs, mass, target), tolerances={"xatol": 1e-12, "xrtol": 1e-12})
-    return np.where(result.success, np.exp(result.x), np.nan)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        result = find_root(gap, (np.full(target.shape, lo), np.full(target.shape, hi)),
+                           args=(fs, mass, target), tolerances={"xatol": 1e-12, "xrtol": 1e-12})
+    zeta = np.where(result.success, np.exp(result.x), np.nan)
+    if np.any(np.isnan(zeta)):
+        _warn_no_effective_damping(fs, mass, target, spectrum, bracket, np.isnan(zeta))
+    return zeta
+
+
+def _warn_no_effective_damping(fs, mass, target, spectrum, bracket, missing):
+    """Say why effective damping ratios have no value (once per call)."""
+    f, m, goal = fs[missing], mass[missing], target[missing]
+    ends = [bare_sigma_acceleration(f, m, np.full(f.shape, z), spectrum) for z in bracket]
+    above = goal > ends[0]
+    below = goal < ends[1]
+    i = int(np.flatnonzero(above | below)[0]) if np.any(above | below) else 0
+    reason, end = (1, 0) if above[i] else (2, 1) if below[i] else (0, 0)
+    warnings.warn(NoEffectiveDampingWarning(current_load(), {
+        "missing": float(missing.sum()), "total": float(missing.size), "reason": float(reason),
+        "sigma_m_s2": float(goal[i]), "bare_sigma_m_s2": float(ends[end][i]),
+        "damping_ratio": float(bracket[end]), "frequency_hz": float(f[i]),
+        "f_min_hz": float(spectrum.f_min_hz), "f_max_hz": float(spectrum.f_max_hz)}),
+        stacklevel=3)

@@ -81,3 +81,33 @@ def test_infeasible_target_is_reported():
                          settings=BankSettings(frequency_ratios=(0.98,), damping_ratios=(0.05,)))
     assert not bank.meets_target and bank.governed_by == "mass"
     assert "no uniform scaling" in bank.message
+
+
+def test_phantom_members_are_pruned_and_the_bank_rechecked(kestrel_case):
+    # Issue 13, defect 13: on the Kestrel Point demo the bank listed members
+    # of a fraction of a kilogram beside members of tens of tonnes. Members
+    # below the stated share of the bank's mass are removed, the rest scaled
+    # up until the engine passes, and the pruned bank is re-checked here by
+    # the engine on its own (tmd.performance.assess).
+    import warnings
+
+    from tmd.jobs import loaded_mode_of
+
+    loaded = loaded_mode_of(kestrel_case)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        bank = size_tmd_bank(loaded, 0.06, max_mass_ratio=0.05, max_stroke_m=1.2)
+        # A share above the lighter member's forces a pruning on this demo.
+        strict = size_tmd_bank(loaded, 0.06, max_mass_ratio=0.05, max_stroke_m=1.2,
+                               settings=BankSettings(prune_share=0.45))
+    for b, share in ((bank, 0.01), (strict, 0.45)):
+        before = b.mass_kg.sum() + sum(p["mass_kg"] for p in b.pruned)
+        assert all(p["mass_kg"] < share * before for p in b.pruned)
+        assert np.all(b.mass_kg >= share * b.mass_kg.sum() * (1 - 1e-12))
+        m = loaded.mode
+        a = assess(m.frequency_hz, m.modal_mass_kg, m.damping_ratio, b.absorbers,
+                   loaded.spectrum, loaded.duration_s, shape_factor=loaded.shape_factor)
+        assert float(np.ravel(a.peak_acceleration_m_s2)[0]) <= 0.06
+        assert float(np.max(a.peak_stroke_m)) <= 1.2 * (1 + 1e-9)  # the re-check's tolerance
+    assert strict.pruned and "removed" in strict.message
+    assert strict.mass_kg.size < bank.mass_kg.size

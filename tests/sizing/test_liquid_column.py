@@ -141,3 +141,26 @@ def test_sized_column_meets_target_at_its_fixed_point(demo_case):
         d.liquid_mass_kg, rel=1e-12)
     assert d.participating_mass_kg == pytest.approx(0.75**2 * d.liquid_mass_kg, rel=1e-12)
     assert d.peak_excursion_m <= 0.8 * d.vertical_liquid_height_m * (1 + 1e-6)
+
+
+def test_fixed_point_without_excitation_is_the_floor():
+    # Issue 13, defect 2: an absorber that is not excited gave a NaN fixed
+    # point (log of zero), and compare failed whenever no damper was needed.
+    # The linearised damping of the quadratic head loss vanishes with the
+    # liquid velocity (zeta_eq = xi sigma_v / (sqrt(2 pi) L omega_l), Gao,
+    # Kwok & Samali 1997), so with zero gain the fixed point is the floor,
+    # here the search's lower end 1e-5.
+    case = LoadedMode(Mode(0.2, 1e7, 0.01), WhiteSpectrum(4e9, 0.02, 2.0))
+    zeta, a = velocity_proportional_fixed_point(case, 1e5, 0.2, 0.8, 0.0,
+                                                frequency_scale=np.array([0.9, 1.0, 1.1]))
+    np.testing.assert_allclose(zeta, 1e-5, rtol=1e-9)
+    assert np.all(np.isfinite(a.peak_acceleration_m_s2))
+
+
+def test_no_column_is_sized_when_the_bare_building_meets_the_target():
+    # Issue 13, defect 2: the "no damper" design held a massless column with
+    # a 165 m excursion. Without liquid nothing moves (common practice).
+    case = LoadedMode(Mode(0.2, 1e7, 0.01), WhiteSpectrum(4e9, 0.02, 2.0))
+    d = size_liquid_column(case, 10.0, max_mass_ratio=0.05)
+    assert d.governed_by == "bare" and d.meets_target
+    assert d.liquid_mass_kg == d.peak_excursion_m == d.vertical_leg_height_m == 0.0

@@ -41,6 +41,7 @@ from tmd.robust.sweeps import (
     peak_acceleration_band_max,
     structure_damping_ratios,
 )
+from tmd.verdict import meets_target
 
 OPTIMISER_BAND_POINTS = 41  # grid of s inside the minimax tuning
 CHECK_BAND_POINTS = 201     # finer grid the robust answer is checked on
@@ -214,7 +215,7 @@ def robust_least_mass(loaded: LoadedMode, target_peak_m_s2: float, frequency_ban
     """
     bare = peak_acceleration_band_max(loaded, None, frequency_band,
                                       structure_damping_ratio=structure_damping_ratio)
-    if bare.peak_acceleration_m_s2 <= target_peak_m_s2:
+    if meets_target(bare.peak_acceleration_m_s2, target_peak_m_s2):
         return RobustSizing(None, frequency_band, bare, True, "bare", (
             f"the bare building's peak acceleration stays at or below {target_peak_m_s2:.4g} "
             f"m/s^2 across the band ±{frequency_band:g}: no damper is needed"))
@@ -226,7 +227,7 @@ def robust_least_mass(loaded: LoadedMode, target_peak_m_s2: float, frequency_ban
                                 structure_damping_ratio, check_points)
         worst = sizing.band_maximum
         if (sizing.governed_by != "target" or worst is None
-                or worst.peak_acceleration_m_s2 <= target_peak_m_s2):
+                or meets_target(worst.peak_acceleration_m_s2, target_peak_m_s2)):
             return sizing
         grid = np.union1d(grid, [worst.structure_frequency_factor])
     return RobustSizing(sizing.design, frequency_band, worst, False, "target", (
@@ -237,27 +238,32 @@ def robust_least_mass(loaded: LoadedMode, target_peak_m_s2: float, frequency_ban
 def _robust_search(loaded, goal, target, band, grid, max_mu, min_mu, max_stroke_m, damping,
                    check_points) -> RobustSizing:
     last = []
+    tunings = {}
 
     def best(mu):
         # Warm-started from the last tuning: SLSQP from the nominal optimum can
-        # zig-zag on the nearly degenerate worst-case constraints.
+        # zig-zag on the nearly degenerate worst-case constraints. One tuning
+        # per mass ratio, so that the answer is the tuning the search saw.
+        if mu in tunings:
+            return tunings[mu]
         tuning = tune_for_band(loaded, mu, grid, max_stroke_m=max_stroke_m,
                                structure_damping_ratio=damping,
                                start=last[-1] if last else None)
         if np.isfinite(tuning.value):
             last.append((tuning.frequency_ratio, tuning.damping_ratio))
+        tunings[mu] = tuning
         return tuning
 
     def finish(mu, tuning, met, governed_by, message):
         damper = TunedMassDamper(mu, tuning.frequency_ratio, tuning.damping_ratio)
         worst = peak_acceleration_band_max(loaded, damper, band, points=check_points,
                                            structure_damping_ratio=damping)
-        met = met and worst.peak_acceleration_m_s2 <= target
+        met = met and meets_target(worst.peak_acceleration_m_s2, target)
         return RobustSizing(evaluate_tmd(loaded, damper, target), band, worst, met, governed_by,
                             message)
 
     top = best(max_mu)
-    if top.value > goal:
+    if not meets_target(top.value, goal):
         limit = "stroke" if top.stroke_limited or not np.isfinite(top.value) else "mass"
         reason = (f"the peak stroke limit of {max_stroke_m:g} m" if limit == "stroke"
                   else f"the largest mass ratio allowed, {max_mu:g}")

@@ -26,7 +26,7 @@ def robustness_study(loaded: LoadedMode, nominal: TunedMassDamper, target_peak_m
                      robust_design: bool = True, max_mass_ratio: float = MAX_MASS_RATIO,
                      max_stroke_m: float | None = None,
                      structure_damping_ratio: StructureDamping | None = None,
-                     probabilistic=None) -> dict:
+                     probabilistic=None, robust_sizing: RobustSizing | None = None) -> dict:
     """Sweeps, band maximum, robust design and (optionally) exceedance probabilities.
 
     Parameters
@@ -54,6 +54,10 @@ def robustness_study(loaded: LoadedMode, nominal: TunedMassDamper, target_peak_m
         ``functools.partial(numpy.interp, xp=s_values, fp=zeta_values)``.
     probabilistic : tmd.probabilistic.Uncertainty, optional
         Random structure frequency (and damping): adds ``probabilistic``.
+    robust_sizing : RobustSizing, optional
+        A robust design sized already (e.g. the design itself, when it was
+        sized for the band): reported as ``robust_design`` instead of a new
+        search.
 
     Returns
     -------
@@ -80,8 +84,10 @@ def robustness_study(loaded: LoadedMode, nominal: TunedMassDamper, target_peak_m
     worst = BandMaximum(result["peak_acceleration_band_max_m_s2"],
                         result["worst_structure_frequency_factor"])
     at_nominal = float(loaded.assess(nominal.absorbers(loaded.mode)).peak_acceleration_m_s2)
-    robust = None
-    if robust_design:
+    robust = robust_sizing
+    if robust is not None:
+        result["robust_design"] = robust_design_block(robust)
+    elif robust_design:
         robust = robust_least_mass(loaded, target_peak_m_s2, frequency_band,
                                    max_mass_ratio=max_mass_ratio, max_stroke_m=max_stroke_m,
                                    structure_damping_ratio=structure_damping_ratio)
@@ -124,7 +130,8 @@ def design_sweeps(loaded: LoadedMode, damper: TunedMassDamper, *,
     sweep_range, spring_range, dashpot_range : float
         Half-widths of the structure-frequency, spring and dashpot sweeps [-].
     structure_damping_ratio : callable, optional
-        zeta_s(s) [-]; default the mode's constant damping.
+        zeta_s(s) [-]; default the case's band definition
+        (:meth:`tmd.design.LoadedMode.structure_damping_ratio`).
 
     Returns
     -------

@@ -84,7 +84,8 @@ def sweep_structure_frequency(loaded: LoadedMode, damper: TunedMassDamper | None
     points : int
         Number of points (made odd so that s = 1 is one of them).
     structure_damping_ratio : callable, optional
-        zeta_s(s) [-]; default the mode's constant damping.
+        zeta_s(s) [-]; default the case's band definition
+        (:meth:`tmd.design.LoadedMode.structure_damping_ratio`).
 
     Returns
     -------
@@ -279,10 +280,26 @@ def factor_grid(half_range: float, points: int) -> np.ndarray:
 
 
 def structure_damping_ratios(loaded: LoadedMode, factors, structure_damping_ratio=None):
-    """zeta_s at each structure frequency factor [-] (the mode's own when None)."""
+    """zeta_s at each structure frequency factor [-].
+
+    Parameters
+    ----------
+    loaded : LoadedMode
+        Its :meth:`~tmd.design.LoadedMode.structure_damping_ratio` is the band
+        definition used when no other is given.
+    factors : array
+        Structure frequency factors s [-].
+    structure_damping_ratio : callable, optional
+        zeta_s(s) [-] replacing the loaded mode's own definition (e.g. a table).
+
+    Returns
+    -------
+    array
+        zeta_s at every factor [-], the shape of ``factors``.
+    """
     s = np.asarray(factors, float)
     if structure_damping_ratio is None:
-        return np.full(s.shape, loaded.mode.damping_ratio)
+        return np.broadcast_to(loaded.structure_damping_ratio(s), s.shape)
     return np.broadcast_to(np.asarray(structure_damping_ratio(s), float), s.shape)
 
 

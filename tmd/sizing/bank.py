@@ -59,6 +59,7 @@ from tmd.design import DesignError, LoadedMode
 from tmd.grid import pole_grid
 from tmd.performance import Assessment, assess
 from tmd.response import closed_loop_poles, resonances
+from tmd.verdict import meets_target
 
 TWO_PI = 2.0 * math.pi
 # The convex step aims this far (relative, on sigma) inside the limits so that
@@ -90,6 +91,10 @@ class BankSettings:
         Convex steps at most.
     tolerance : float
         Stop when a step lowers the total mass by less than this fraction.
+    prune_share : float
+        Members lighter than this share of the bank's total mass are removed
+        from the final bank [-]; the rest are scaled up until the engine's
+        re-check passes, and what was removed is reported.
     """
 
     frequency_ratios: tuple[float, ...] = (0.90, 0.94, 0.98, 1.02)
@@ -97,6 +102,7 @@ class BankSettings:
     frequency_factors: tuple[float, ...] = (1.0,)
     max_iterations: int = 30
     tolerance: float = 1e-4
+    prune_share: float = 0.01
 
     def candidates(self) -> tuple[np.ndarray, np.ndarray]:
         """Frequency ratios and damping ratios of every candidate, flattened."""
@@ -135,6 +141,7 @@ class BankDesign:
     governed_by: str
     message: str
     history: tuple[BankIterate, ...] = field(default=())
+    pruned: tuple[dict, ...] = field(default=())
 
     @property
     def absorbers(self) -> Absorbers:
@@ -158,6 +165,8 @@ class _Problem:
         self.zeta = np.asarray(damping_ratio, float)
         m = loaded.mode
         self.fs = self.s * m.frequency_hz
+        # The band definition of every job (aerodynamic damping as 1/s).
+        self.zeta_s = loaded.structure_damping_ratio(self.s)
         self.k0 = m.stiffness_n_per_m
 
     def absorbers(self, mu, keep):
@@ -169,7 +178,7 @@ class _Problem:
 
     def assess(self, mu, keep) -> Assessment:
         m, c = self.loaded.mode, self.loaded
-        return assess(self.fs, m.modal_mass_kg, m.damping_ratio, self.absorbers(mu, keep),
+        return assess(self.fs, m.modal_mass_kg, self.zeta_s, self.absorbers(mu, keep),
                       c.spectrum, c.duration_s, shape_factor=c.shape_factor,
                       peak_method=c.peak_method)
 
@@ -184,8 +193,11 @@ class _Problem:
         return acc, stroke, a
 
     def feasible(self, mu, keep):
-        acc, stroke, _ = self.ratios(mu, keep)
-        return max(acc, stroke) <= 1.0 + CHECK_TOLERANCE
+        # The target is met exactly (the one verdict comparison); the stroke
+        # limit, a geometric allowance, within CHECK_TOLERANCE.
+        _, stroke, a = self.ratios(mu, keep)
+        return (meets_target(float(np.max(a.peak_acceleration_m_s2)), self.target)
+                and stroke <= 1.0 + CHECK_TOLERANCE)
 
 
 def size_tmd_bank(loaded: LoadedMode, target_peak_m_s2: float, *, max_mass_ratio: float,
@@ -235,7 +247,7 @@ def size_tmd_bank(loaded: LoadedMode, target_peak_m_s2: float, *, max_mass_ratio
     n = ratios.size
     keep = np.ones(n, bool)
     bare_acc = float(np.max(problem.assess(np.zeros(n), keep).peak_acceleration_m_s2))
-    if bare_acc <= target_peak_m_s2:
+    if meets_target(bare_acc, target_peak_m_s2):
         return _design(problem, np.zeros(n), keep, True, "bare",
                        "the bare building already meets the target: no damper is needed", ())
     mu, keep = _feasible_start(problem, n, max_mass_ratio)
@@ -270,11 +282,48 @@ def size_tmd_bank(loaded: LoadedMode, target_peak_m_s2: float, *, max_mass_ratio
         history.append(_iterate(problem, mu, keep, step, status))
         if decrease < settings.tolerance:
             break
+    mu, keep, pruned, note = _prune(problem, mu, keep, settings.prune_share, max_mass_ratio)
     return _design(problem, mu, keep, True, "target", (
         f"{int(keep.sum())} of {n} candidate dampers, total mass ratio {mu.sum():.5g}, meet the "
         f"target {target_peak_m_s2:.4g} m/s^2 in {problem.s.size} scenario(s) after "
         f"{len(history) - 1} convex steps (a stationary point, not necessarily the global least "
-        "mass)"), tuple(history))
+        f"mass){note}"), tuple(history), pruned)
+
+
+def _prune(problem: _Problem, mu, keep, share, max_mass_ratio):
+    """Remove members below ``share`` of the bank's mass; re-check with the engine.
+
+    The remaining members keep their tunings and are scaled up together by
+    the least factor (bisection, 30 engine checks at most) that passes the
+    engine's re-check; if none within ``max_mass_ratio`` does, nothing is
+    removed. Returns (mu, keep, pruned members as dicts, a note for the message).
+    """
+    small = keep & (mu > 0) & (mu < share * mu.sum())
+    if not small.any():
+        return mu, keep, (), ""
+    rest_keep = keep & ~small
+    rest = np.where(rest_keep, mu, 0.0)
+    lo, hi = 1.0, max_mass_ratio / rest.sum()
+    if not problem.feasible(rest * hi, rest_keep):
+        return mu, keep, (), (
+            f"; {int(small.sum())} member(s) below {share:g} of the bank's mass are kept, as "
+            "the bank without them fails the engine's re-check")
+    if problem.feasible(rest, rest_keep):
+        hi = 1.0
+    for _ in range(30):
+        if hi - lo <= 1e-9 * hi:
+            break
+        mid = 0.5 * (lo + hi)
+        lo, hi = (lo, mid) if problem.feasible(rest * mid, rest_keep) else (mid, hi)
+    mass = problem.loaded.mode.modal_mass_kg
+    pruned = tuple({"mass_kg": float(mu[j] * mass), "frequency_hz": float(problem.f[j]),
+                    "damping_ratio": float(problem.zeta[j])} for j in np.flatnonzero(small))
+    removed = sum(p["mass_kg"] for p in pruned)
+    scaled = ("the other members pass unchanged" if hi == 1.0
+              else f"the other members scaled by {hi:.6g} to pass")
+    note = (f"; {len(pruned)} member(s) below {share:g} of the bank's mass (together "
+            f"{removed:.4g} kg) were removed and {scaled} the engine's re-check")
+    return rest * hi, rest_keep, pruned, note
 
 
 def _feasible_start(problem: _Problem, n, max_mass_ratio):
@@ -293,7 +342,8 @@ def _feasible_start(problem: _Problem, n, max_mass_ratio):
         for _ in range(n):
             mu = np.where(keep, max_mass_ratio / max(keep.sum(), 1), 0.0)
             acc, stroke, a = problem.ratios(mu, keep)
-            if acc <= 1 + CHECK_TOLERANCE and stroke <= 1 + CHECK_TOLERANCE:
+            if (meets_target(float(np.max(a.peak_acceleration_m_s2)), problem.target)
+                    and stroke <= 1 + CHECK_TOLERANCE):
                 return mu, keep
             worst = np.max(a.peak_stroke_m, axis=0) > problem.max_stroke
             if not np.any(worst):
@@ -317,15 +367,15 @@ def _convex_step(problem: _Problem, mu, keep):
     idx = np.flatnonzero(keep)
     a = problem.assess(mu, keep)
     absorbers = problem.absorbers(mu, keep)
-    poles = closed_loop_poles(problem.fs, m.modal_mass_kg, m.damping_ratio, absorbers)
+    poles = closed_loop_poles(problem.fs, m.modal_mass_kg, problem.zeta_s, absorbers)
     grid, weight = pole_grid(*resonances(poles), c.spectrum.f_min_hz, c.spectrum.f_max_hz)
     omega = TWO_PI * grid
     w2 = omega**2
     fs = problem.fs[:, None]
     # Nondimensional z = Z / k0 = base + coeff @ mu, per scenario and node.
     ks = (fs / m.frequency_hz) ** 2
-    base = ks - w2 / (TWO_PI * m.frequency_hz) ** 2 + 2j * m.damping_ratio * np.sqrt(ks) * (
-        omega / (TWO_PI * m.frequency_hz))
+    base = ks - w2 / (TWO_PI * m.frequency_hz) ** 2 + 2j * problem.zeta_s[:, None] * np.sqrt(
+        ks) * (omega / (TWO_PI * m.frequency_hz))
     wa = TWO_PI * problem.f[idx]
     d = wa**2 - w2[..., None] + 2j * problem.zeta[idx] * wa * omega[..., None]
     transfer = 1.0 + w2[..., None] / d
@@ -370,10 +420,10 @@ def _iterate(problem, mu, keep, step, status) -> BankIterate:
                        str(status))
 
 
-def _design(problem, mu, keep, meets, governed, message, history) -> BankDesign:
+def _design(problem, mu, keep, meets, governed, message, history, pruned=()) -> BankDesign:
     mass = problem.loaded.mode.modal_mass_kg
     used = keep & (mu > 0)
     return BankDesign(mass_kg=mu[used] * mass, frequency_hz=problem.f[used].copy(),
                       damping_ratio=problem.zeta[used].copy(), mass_ratio=float(mu[used].sum()),
                       meets_target=bool(meets), governed_by=governed, message=message,
-                      history=history)
+                      history=history, pruned=pruned)

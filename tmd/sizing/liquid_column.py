@@ -66,9 +66,11 @@ from tmd.dampers.liquid_column import (
     leg_height_m,
 )
 from tmd.design import LoadedMode, bare_response, smallest_meeting_mass_ratio, tune
+from tmd.errors import NonFiniteResult
 from tmd.performance import Assessment, assess
 from tmd.response import spectral_response
 from tmd.structure import Mode
+from tmd.verdict import meets_target
 
 _ZETA_BRACKET = (1e-5, 0.95)
 
@@ -181,6 +183,15 @@ def size_liquid_column(loaded: LoadedMode, target_peak_m_s2: float, *, max_mass_
 def _column_design(loaded, sizing: CoupledSizing, settings: ColumnSettings) -> ColumnDesign:
     mode, alpha = loaded.mode, settings.length_ratio
     length = float(column_length_m(sizing.frequency_hz))
+    if sizing.governed_by == "bare":
+        # No column is needed: no liquid, so nothing moves and nothing is sized.
+        return ColumnDesign(
+            liquid_mass_kg=0.0, mass_ratio=0.0, participating_mass_kg=0.0, rigid_mass_kg=0.0,
+            frequency_hz=sizing.frequency_hz, length_ratio=alpha, liquid_length_m=0.0,
+            horizontal_length_m=0.0, vertical_liquid_height_m=0.0, cross_section_area_m2=0.0,
+            columns=0, head_loss_coefficient=0.0, equivalent_damping_ratio=0.0,
+            sigma_excursion_m=0.0, peak_excursion_m=0.0, vertical_leg_height_m=0.0,
+            meets_target=sizing.meets_target, governed_by="bare", message=sizing.message)
     mass = sizing.mass_ratio * mode.modal_mass_kg
     a = loaded.assess(sizing.absorbers(mode))
     sigma_v = TWO_PI * float(np.sqrt(_stroke_m2(loaded, sizing.absorbers(mode))))
@@ -233,23 +244,32 @@ def least_coupled_mass(loaded: LoadedMode, target_peak_m_s2: float, coupling: fl
     if not 0 < coupling <= 1:
         raise ValueError(f"coupling must lie in (0, 1], got {coupling!r}")
     bare = bare_response(loaded)
-    if bare.peak_acceleration_m_s2 <= target_peak_m_s2:
+    if meets_target(bare.peak_acceleration_m_s2, target_peak_m_s2):
         return CoupledSizing(0.0, loaded.mode.frequency_hz, _ZETA_BRACKET[0], coupling, True,
-                             "bare", "the bare building already meets the target: no damper "
-                             "is needed")
+                             "bare", "the bare building already meets the target: no damper is "
+                             "needed")
     stroke = None if max_coordinate_m is None else max_coordinate_m / coupling
+    tunings = {}
 
     def best(mu):
+        # One tuning per mass ratio: the answer is the tuning the search saw.
         split, mu_tmd = _split_case(loaded, mu, coupling)
-        return split, tune(split, mu_tmd, max_stroke_m=stroke)
+        if mu not in tunings:
+            tunings[mu] = tune(split, mu_tmd, max_stroke_m=stroke)
+        return split, tunings[mu]
 
     def sizing(mu, meets, governed, message):
         split, t = best(mu)
         return CoupledSizing(mu, t.frequency_ratio * split.mode.frequency_hz, t.damping_ratio,
                              coupling, meets, governed, message)
 
+    def reported_meets(mu):
+        # The verdict on the coupled absorber on the case's own mode, as reported.
+        a = loaded.assess(sizing(mu, True, "", "").absorbers(loaded.mode))
+        return meets_target(float(np.ravel(a.peak_acceleration_m_s2)[0]), target_peak_m_s2)
+
     _, top = best(max_mass_ratio)
-    if top.value > target_peak_m_s2:
+    if not meets_target(top.value, target_peak_m_s2):
         limit = "stroke" if top.stroke_limited or not np.isfinite(top.value) else "mass"
         reason = "the excursion limit" if limit == "stroke" else "the largest mass ratio"
         return sizing(max_mass_ratio, False, limit, (
@@ -257,10 +277,15 @@ def least_coupled_mass(loaded: LoadedMode, target_peak_m_s2: float, coupling: fl
             f"{max_mass_ratio:g} (limited by {reason})"))
 
     mu = smallest_meeting_mass_ratio(lambda x: best(x)[1].value, target_peak_m_s2,
-                                     min_mass_ratio, max_mass_ratio)
+                                     min_mass_ratio, max_mass_ratio, accept=reported_meets)
     _, t = best(mu)
+    met = reported_meets(mu)
+    verdict = "meets" if met else "does not meet"
+    if mu == min_mass_ratio and t.value < target_peak_m_s2 * (1 - 1e-4):
+        return sizing(mu, met, "minimum", f"the smallest mass ratio searched, {mu:g}, already "
+                      f"{verdict} the target {target_peak_m_s2:.4g} m/s^2")
     governed = "target" if abs(t.value / target_peak_m_s2 - 1) < 1e-4 else "stroke"
-    return sizing(mu, True, governed, f"least mass ratio {mu:.5g} meets the target "
+    return sizing(mu, met, governed, f"least mass ratio {mu:.5g} {verdict} the target "
                   f"{target_peak_m_s2:.4g} m/s^2" + (" (set by the excursion limit)"
                                                       if governed == "stroke" else ""))
 
@@ -294,8 +319,9 @@ def velocity_proportional_fixed_point(loaded: LoadedMode, mass_kg: float, freque
     damping_floor : float
         Amplitude-independent part of the damping ratio [-].
     frequency_scale : float or array
-        Structure frequency factor s (f_s -> s f_s, zeta_s and M* kept), a
-        batch of scenarios solved together.
+        Structure frequency factor s (f_s -> s f_s, M* kept, zeta_s by the
+        band definition :meth:`tmd.design.LoadedMode.structure_damping_ratio`),
+        a batch of scenarios solved together.
 
     Returns
     -------
@@ -310,39 +336,61 @@ def velocity_proportional_fixed_point(loaded: LoadedMode, mass_kg: float, freque
     [m^2 Hz^2]. sigma_r' falls as zeta rises, so
     log zeta - log(floor + gain sigma_r'(zeta)) increases monotonically and
     its root is found elementwise (Chandrupatla,
-    ``scipy.optimize.elementwise.find_root``).
+    ``scipy.optimize.elementwise.find_root``). Where the absorber is not
+    excited (no liquid, or no gain) floor + gain sigma_r' is zero and the
+    fixed point is the floor; it is held at the bracket's lower end
+    (1e-5), so that a damper that is not needed gives finite numbers.
+
+    Raises
+    ------
+    tmd.errors.NonFiniteResult
+        If the fixed point cannot be found, with the scenario and values.
     """
     scale = np.atleast_1d(np.asarray(frequency_scale, float))
     m = loaded.mode
     fs = m.frequency_hz * scale
+    zeta_s = np.broadcast_to(loaded.structure_damping_ratio(scale), scale.shape)
 
     def absorbers(zeta):
         return Absorbers(np.full(zeta.shape + (1,), mass_kg), np.full(zeta.shape + (1,),
                          frequency_hz), zeta[..., None], np.full(zeta.shape + (1,), coupling))
 
-    def gap(log_zeta, fs_):
+    def gap(log_zeta, fs_, zeta_s_):
         zeta = np.exp(log_zeta)
-        sigma_v = TWO_PI * np.sqrt(_stroke_m2(loaded, absorbers(zeta), fs_))
-        return log_zeta - np.log(damping_floor + gain_s_per_m * sigma_v)
+        sigma_v = TWO_PI * np.sqrt(_stroke_m2(loaded, absorbers(zeta), fs_, zeta_s_))
+        return log_zeta - np.log(np.maximum(damping_floor + gain_s_per_m * sigma_v,
+                                            _ZETA_BRACKET[0]))
 
     lo, hi = (np.full(scale.shape, math.log(b)) for b in _ZETA_BRACKET)
-    result = find_root(gap, (lo, hi), args=(fs,), tolerances={"xatol": 1e-12, "xrtol": 1e-12})
+    result = find_root(gap, (lo, hi), args=(fs, zeta_s),
+                       tolerances={"xatol": 1e-12, "xrtol": 1e-12})
     zeta = np.exp(result.x)
-    a = _assess(loaded, absorbers(zeta), fs)
+    if not np.all(np.isfinite(zeta)):
+        bad = int(np.flatnonzero(~np.isfinite(zeta))[0])
+        raise NonFiniteResult(
+            f"the equivalent damping of the liquid absorber (mass {mass_kg:.6g} kg, "
+            f"{frequency_hz:.6g} Hz, coupling {coupling:.6g}, gain {gain_s_per_m:.6g} s/m, "
+            f"floor {damping_floor:.6g}) has no fixed point in {_ZETA_BRACKET} at structure "
+            f"frequency factor {scale[bad]:.6g}")
+    a = _assess(loaded, absorbers(zeta), fs, zeta_s)
     return zeta, a
 
 
-def _assess(loaded: LoadedMode, absorbers: Absorbers, frequency_hz=None) -> Assessment:
+def _assess(loaded: LoadedMode, absorbers: Absorbers, frequency_hz=None,
+            damping_ratio=None) -> Assessment:
     m = loaded.mode
     fs = m.frequency_hz if frequency_hz is None else frequency_hz
-    return assess(fs, m.modal_mass_kg, m.damping_ratio, absorbers, loaded.spectrum,
+    zeta = m.damping_ratio if damping_ratio is None else damping_ratio
+    return assess(fs, m.modal_mass_kg, zeta, absorbers, loaded.spectrum,
                   loaded.duration_s, shape_factor=loaded.shape_factor,
                   peak_method=loaded.peak_method)
 
 
-def _stroke_m2(loaded: LoadedMode, absorbers: Absorbers, frequency_hz=None) -> np.ndarray:
+def _stroke_m2(loaded: LoadedMode, absorbers: Absorbers, frequency_hz=None,
+               damping_ratio=None) -> np.ndarray:
     """Second spectral moment of the (single) absorber coordinate [m^2 Hz^2]."""
     m = loaded.mode
     fs = m.frequency_hz if frequency_hz is None else frequency_hz
-    r = spectral_response(fs, m.modal_mass_kg, m.damping_ratio, absorbers, loaded.spectrum)
+    zeta = m.damping_ratio if damping_ratio is None else damping_ratio
+    r = spectral_response(fs, m.modal_mass_kg, zeta, absorbers, loaded.spectrum)
     return r.stroke.m2[..., 0]

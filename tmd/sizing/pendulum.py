@@ -12,10 +12,16 @@ Den Hartog, J. P. (1956). Mechanical Vibrations, 4th ed. McGraw-Hill
 
 from __future__ import annotations
 
+import math
+import warnings
 from dataclasses import dataclass
 
 from tmd.dampers.pendulum import PendulumSettings, pendulum_length_m, swing_angle_rad
 from tmd.design import LoadedMode, Sizing, TmdDesign, least_mass
+
+
+class SwingAngleWarning(UserWarning):
+    """A pendulum's peak stroke exceeds its length: no swing angle reaches it."""
 
 
 @dataclass(frozen=True)
@@ -65,7 +71,35 @@ def size_pendulum(loaded: LoadedMode, target_peak_m_s2: float, *, max_mass_ratio
 
 def pendulum_design(design: TmdDesign, settings: PendulumSettings = PendulumSettings()
                     ) -> PendulumDesign:
-    """The pendulum geometry of a TMD design."""
+    """The pendulum geometry of a TMD design.
+
+    Parameters
+    ----------
+    design : TmdDesign
+        The TMD the pendulum realises (its frequency sets the length).
+    settings : PendulumSettings
+        Number of stages.
+
+    Returns
+    -------
+    PendulumDesign
+        ``peak_swing_angle_rad`` is NaN (null in results.json) where the peak
+        stroke exceeds the pendulum's length, with a
+        :class:`SwingAngleWarning` saying so.
+
+    Notes
+    -----
+    L = g / (2 pi f_d)^2; theta = asin(u_peak / L), which has no value for
+    u_peak > L: no pendulum of that length swings that far, and the
+    small-swing linear model behind the sizing no longer holds.
+    """
     length = float(pendulum_length_m(design.frequency_hz))
-    return PendulumDesign(design, length, settings.stages, length / settings.stages,
-                          float(swing_angle_rad(design.peak_stroke_m, length)))
+    angle = float(swing_angle_rad(design.peak_stroke_m, length))
+    if math.isnan(angle):
+        warnings.warn(
+            f"the pendulum's peak swing angle has no value (null): its peak stroke "
+            f"{design.peak_stroke_m:.4g} m exceeds its length {length:.4g} m (at "
+            f"{design.frequency_hz:.4g} Hz), so no swing reaches it and the small-swing model "
+            "does not hold; limit the stroke ([damper] max_stroke_m) or choose another option",
+            SwingAngleWarning, stacklevel=2)
+    return PendulumDesign(design, length, settings.stages, length / settings.stages, angle)

@@ -102,6 +102,17 @@ def size_sloshing_tanks(loaded: LoadedMode, target_peak_m_s2: float, *, max_mass
 
 def _tank_design(loaded, sizing: CoupledSizing, settings: TankSettings, fraction) -> TankDesign:
     mode, ratio, beta = loaded.mode, settings.depth_ratio, sizing.coupling
+    if sizing.governed_by == "bare":
+        # No tank is needed: no water, so nothing sloshes and nothing is sized.
+        return TankDesign(
+            water_mass_kg=0.0, mass_ratio=0.0, participating_mass_kg=0.0, rigid_mass_kg=0.0,
+            coupling=beta, frequency_hz=sizing.frequency_hz, tank_length_m=0.0,
+            water_depth_m=0.0, tank_width_m=0.0, tank_count=0, screen_positions=(),
+            screen_loss_coefficient=0.0, equivalent_damping_ratio=0.0,
+            intrinsic_damping_ratio=0.0, damping_gain_s_per_m=0.0,
+            peak_sloshing_displacement_m=0.0, peak_free_surface_elevation_m=0.0,
+            freeboard_m=settings.freeboard_m, meets_target=sizing.meets_target,
+            governed_by="bare", message=sizing.message)
     length = float(tank_length_m(sizing.frequency_hz, ratio))
     depth = ratio * length
     water = sizing.mass_ratio * mode.modal_mass_kg

@@ -14,7 +14,9 @@ dampers add (virtual work on the modal coordinate)
 The supplemental damping ratio needed is found on the same engine: the
 bare mode's peak acceleration falls monotonically with its damping ratio, so
 zeta_total with peak(zeta_total) = target is bracketed and found by Brent's
-method (``scipy.optimize.brentq``); zeta_add = zeta_total - zeta_s. This
+method (``scipy.optimize.brentq``), taking the end of its final bracket that
+meets the target (:func:`tmd.design.smallest_meeting_mass_ratio`);
+zeta_add = zeta_total - zeta_s. This
 assumes the dampers leave the mode shape unchanged (classical damping), a
 common preliminary-design simplification.
 
@@ -31,13 +33,13 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.optimize import brentq
 
 from tmd.dampers.absorber import Absorbers
-from tmd.design import LoadedMode
+from tmd.design import LoadedMode, smallest_meeting_mass_ratio
 from tmd.peak import davenport_peak_factor
 from tmd.performance import assess
 from tmd.response import spectral_response
+from tmd.verdict import meets_target
 
 TWO_PI = 2.0 * math.pi
 MAX_DAMPING_RATIO = 0.5
@@ -118,19 +120,18 @@ def size_added_damping(loaded: LoadedMode, target_peak_m_s2: float, *,
         return float(_assess_damped(loaded, zeta).peak_acceleration_m_s2)
 
     zeta_s = m.damping_ratio
-    if peak(zeta_s) <= target_peak_m_s2:
-        total, met, message = zeta_s, True, "the bare building already meets the target"
-    elif peak(max_damping_ratio) > target_peak_m_s2:
-        total, met = max_damping_ratio, False
+    if meets_target(peak(zeta_s), target_peak_m_s2):
+        total, message = zeta_s, "the bare building already meets the target"
+    elif not meets_target(peak(max_damping_ratio), target_peak_m_s2):
+        total = max_damping_ratio
         message = (f"the target {target_peak_m_s2:.4g} m/s^2 cannot be met with modal damping "
                    f"up to {max_damping_ratio:g}")
     else:
-        total = brentq(lambda z: peak(z) / target_peak_m_s2 - 1.0, zeta_s, max_damping_ratio,
-                       xtol=1e-12, rtol=1e-12)
-        met = True
+        # The search returns the end of its bracket that meets the target.
+        total = smallest_meeting_mass_ratio(peak, target_peak_m_s2, zeta_s, max_damping_ratio)
         message = (f"a total modal damping ratio of {total:.4g} (added {total - zeta_s:.4g}) "
                    f"meets the target {target_peak_m_s2:.4g} m/s^2")
-    return _design(loaded, total, settings, met, message)
+    return _design(loaded, total, settings, meets_target(peak(total), target_peak_m_s2), message)
 
 
 def _design(loaded, total, settings, met, message):
@@ -168,11 +169,12 @@ def peak_acceleration_with_dashpot(loaded: LoadedMode, added_damping_ratio: floa
 
     Notes
     -----
-    With f_s -> s f_s, M* and zeta_s kept, the added dashpot c_add is fixed, so
-    its damping ratio becomes zeta_add / s.
+    With f_s -> s f_s and M* kept, the added dashpot c_add is fixed, so its
+    damping ratio becomes zeta_add / s; the structure's own damping follows
+    the band definition :meth:`tmd.design.LoadedMode.structure_damping_ratio`.
     """
     s = np.asarray(frequency_scale, float)
-    zeta = loaded.mode.damping_ratio + added_damping_ratio / s
+    zeta = loaded.structure_damping_ratio(s) + added_damping_ratio / s
     return _assess_damped(loaded, zeta, s * loaded.mode.frequency_hz).peak_acceleration_m_s2
 
 

@@ -1,0 +1,50 @@
+"""Effective damping: where no damping ratio reproduces the response, say why."""
+
+import numpy as np
+import pytest
+
+from tmd.dampers.tuned_mass import TunedMassDamper
+from tmd.design import LoadedMode, evaluate_tmd
+from tmd.performance import (
+    NoEffectiveDampingWarning,
+    bare_sigma_acceleration,
+    effective_damping_ratio,
+)
+from tmd.spectra import FirstOrderSpectrum, TabulatedSpectrum
+from tmd.structure import Mode
+
+
+def test_load_far_above_the_mode_gives_no_effective_damping_and_says_why():
+    # Issue 13, defect 11: with a load given only on 2-10 Hz, a 0.17 Hz mode
+    # responds mass-like; a TMD adds mass, so the damped rms exceeds the bare
+    # mode's at any damping ratio (|H_a| -> 1/M* far above resonance, common
+    # practice) and the effective damping has no value.
+    f = np.geomspace(2.0, 10.0, 40)
+    case = LoadedMode(Mode(0.17, 1.9e7, 0.012), TabulatedSpectrum(f, 1e10 * (f / 2.0) ** -2))
+    with pytest.warns(NoEffectiveDampingWarning, match="little energy near the mode.s 0.17 Hz"):
+        d = evaluate_tmd(case, TunedMassDamper(0.02, 0.98, 0.07))
+    assert np.isnan(d.effective_damping_ratio)
+
+
+def test_effective_damping_above_the_old_bracket_is_found():
+    # The search reaches 1e-7 to 0.99 (it stopped at 1e-5 and 0.95): a mode's
+    # damping ratio is recovered from its own rms acceleration (definition).
+    spectrum = FirstOrderSpectrum(1e10, 0.5)
+    expected = np.array([3e-6, 0.012, 0.98])
+    sigma = bare_sigma_acceleration(0.2, 1e7, expected, spectrum)
+    zeta = effective_damping_ratio(0.2, 1e7, sigma, spectrum)
+    np.testing.assert_allclose(zeta, expected, rtol=1e-9)  # root tolerance 1e-12 in log
+
+
+def test_non_finite_engine_input_is_a_numerical_failure_naming_it():
+    # Issue 13, defect 4: "Array must not contain infs or NaNs" read as bad
+    # input, with library text. A NaN that reaches the engine is a numerical
+    # failure (exit 1 by tmd.errors), named with its value.
+    from tmd.dampers.absorber import Absorbers
+    from tmd.errors import NonFiniteResult, NumericalFailure
+    from tmd.performance import assess
+    from tmd.spectra import WhiteSpectrum
+
+    with pytest.raises(NonFiniteResult, match=r"damping_ratio = nan") as err:
+        assess(0.2, 1e7, np.array([0.01, np.nan]), Absorbers.none((2,)), WhiteSpectrum(1e9), 600)
+    assert isinstance(err.value, NumericalFailure) and not isinstance(err.value, ValueError)
