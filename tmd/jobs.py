@@ -218,6 +218,8 @@ def sized_for_peak_method(case: Case) -> tuple[Sizing, dict | None]:
         loaded_mode_of(case), case.target_peak_m_s2, lambda t: size_damper(case, t), settings,
         fractile=fractile)
     return sizing, {
+        "scope": "the nominal design is sized against the simulated maxima; per-return-period, "
+                 "band, robust and option figures use Davenport's spectral peak",
         "statistic": "mean" if fractile is None else "fractile",
         "records": settings.records, "seed": settings.seed, "duration_s": settings.duration_s,
         "passes": [{"iteration": p.iteration, "spectral_target_m_s2": p.spectral_target_m_s2,
