@@ -114,8 +114,12 @@ def _summary(result: dict) -> Table:
     table = Table(title=f"{result['case']['name']}", show_lines=False)
     table.add_column("quantity")
     table.add_column("bare building", justify="right")
-    table.add_column("with damper", justify="right")
-    bare, design = result["bare"], result["design"]
+    rec = result.get("recommended") or {}
+    key = rec.get("design_key") or "design"
+    label = {"robust_design": "recommended: band-robust",
+             "design": "recommended: nominal"}.get(key) if rec else "with damper"
+    table.add_column(label, justify="right")
+    bare, design = result["bare"], result.get(key)
     target = result["target"]["peak_acceleration_m_s2"]
     table.add_row("target peak acceleration", _accel(target), "")
     table.add_row("peak acceleration", _accel(bare["peak_acceleration_m_s2"]),
@@ -185,6 +189,19 @@ def _end_stop_table(result: dict) -> Table | None:
     return table
 
 
+def _print_recommendation(result: dict) -> None:
+    rec = result.get("recommended")
+    if not rec:
+        return
+    which = {"robust_design": "the band-robust design", "design": "the nominal design",
+             None: "no damper"}[rec["design_key"]]
+    out_console.print(f"[bold]Recommended: {which}.[/] " + escape(rec["why"]), highlight=False)
+    out_console.print("[dim]Rule: " + escape(rec["rule"]) + ".[/]", highlight=False)
+    if rec.get("end_stops") and (table := _end_stop_table({"end_stops": rec["end_stops"]})):
+        table.title = f"recommended design, {table.title}"
+        out_console.print(table)
+
+
 def _print_end_stops(result: dict) -> None:
     if (table := _end_stop_table(result)) is None:
         return
@@ -223,6 +240,7 @@ def design(case: CaseArg,
     out_console.print(f"[{colour}]{escape(sizing['message'])}[/]", highlight=False)
     _print_end_stops(result)
     _print_robustness(result)
+    _print_recommendation(result)
     _print_notes(result)
     _write(c, result, target)
 
@@ -268,7 +286,9 @@ def _print_robustness(result: dict) -> None:
                   _accel(result["peak_acceleration_band_max_m_s2"]))
     r = result.get("robust_design")
     if r:
-        table.add_row("robust (meets target across band)", f"{r['mass_kg'] / 1000:,.1f} t",
+        label = ("robust (meets target across band)" if r["meets_target_across_band"]
+                 else "robust (best across band; target NOT met)")
+        table.add_row(label, f"{r['mass_kg'] / 1000:,.1f} t",
                       _accel(r["peak_acceleration_m_s2"]),
                       _accel(r["peak_acceleration_band_max_m_s2"]))
     out_console.print(table)

@@ -83,7 +83,8 @@ class _Job:
 def compare_options(loaded: LoadedMode, target_peak_m_s2: float, *, enabled=None,
                     max_mass_ratio: float = MAX_MASS_RATIO, max_stroke_m: float | None = None,
                     frequency_band: float = FREQUENCY_BAND,
-                    settings: OptionSettings | None = None) -> list[dict]:
+                    settings: OptionSettings | None = None,
+                    tmd_sizing: Sizing | None = None) -> list[dict]:
     """Size every enabled passive option and describe each in one dict.
 
     Parameters
@@ -103,6 +104,10 @@ def compare_options(loaded: LoadedMode, target_peak_m_s2: float, *, enabled=None
         Half-width b of the structure-frequency band for the worst-case
         peak [-].
     settings : OptionSettings, optional
+    tmd_sizing : tmd.design.Sizing, optional
+        The case's own TMD sizing (fixed mass ratio and objective, or least
+        mass), so that the TMD and pendulum rows are the design job's TMD;
+        by default the least mass with ``max_stroke_m``.
 
     Returns
     -------
@@ -127,7 +132,7 @@ def compare_options(loaded: LoadedMode, target_peak_m_s2: float, *, enabled=None
     if unknown:
         raise ValueError(f"unknown option(s) {unknown}; known: {list(OPTIONS)}")
     job = _Job(loaded, target_peak_m_s2, max_mass_ratio, max_stroke_m, frequency_band,
-               settings or OptionSettings())
+               settings or OptionSettings(), tmd_sizing)
     rows = [{"option": name} | OPTIONS[name](job) for name in names]
     for row in rows:
         # Every verdict is the one comparison on the number the row reports.

@@ -267,7 +267,8 @@ class StrokeLimitWarning(UserWarning):
 
 
 def stroke_limit_messages(rows: list[dict], end_stops: dict, max_stroke_m: float,
-                          constrained_years: tuple[float, ...]) -> list[str]:
+                          constrained_years: tuple[float, ...],
+                          subject: str = "the design") -> list[str]:
     """One warning per return period whose peak stroke exceeds the limit.
 
     Parameters
@@ -280,6 +281,8 @@ def stroke_limit_messages(rows: list[dict], end_stops: dict, max_stroke_m: float
         The stroke limit [m].
     constrained_years : tuple of float
         Return periods where the limit is a constraint of the tuning [years].
+    subject : str
+        Which design the rows describe, in words.
 
     Returns
     -------
@@ -298,7 +301,8 @@ def stroke_limit_messages(rows: list[dict], end_stops: dict, max_stroke_m: float
                 "constraint of the tuning there, or design the end-stops for the figures of "
                 "the end-stop table")
         out.append(
-            f"at the {period:g}-year wind the peak stroke {d['peak_stroke_m']:.3f} m exceeds "
+            f"{subject}: at the {period:g}-year wind the peak stroke {d['peak_stroke_m']:.3f} m "
+            "exceeds "
             f"the stroke limit {max_stroke_m:g} m by "
             f"{100 * (d['peak_stroke_m'] / max_stroke_m - 1):.1f}%: the damper meets its "
             f"end-stops (about {contacts.get(period, float('nan')):.2g} contacts per hour per "

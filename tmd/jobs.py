@@ -124,7 +124,8 @@ def stroke_cases_of(case: Case) -> tuple[LoadedMode, ...]:
                  if w.return_period_years == period)
 
 
-def extreme_checks(case: Case, design: TmdDesign, rows: list[dict] | None) -> dict:
+def extreme_checks(case: Case, design: TmdDesign, rows: list[dict] | None,
+                   subject: str = "the design") -> dict:
     """The ``end_stops`` block, and a warning per return period whose stroke exceeds the limit.
 
     Parameters
@@ -133,6 +134,8 @@ def extreme_checks(case: Case, design: TmdDesign, rows: list[dict] | None) -> di
     design : TmdDesign
     rows : list of dict or None
         The ``by_return_period`` rows (None for a force-spectrum case).
+    subject : str
+        Which design it is, in the warnings.
 
     Returns
     -------
@@ -149,7 +152,8 @@ def extreme_checks(case: Case, design: TmdDesign, rows: list[dict] | None) -> di
     if rows and case.damper.max_stroke_m is not None:
         constrained = tuple(p for p in (case.target_return_period_years,
                                         case.damper.stroke_return_period_years) if p is not None)
-        for message in stroke_limit_messages(rows, block, case.damper.max_stroke_m, constrained):
+        for message in stroke_limit_messages(rows, block, case.damper.max_stroke_m, constrained,
+                                             subject):
             warnings.warn(message, StrokeLimitWarning, stacklevel=2)
     return {"end_stops": block}
 
@@ -314,9 +318,33 @@ def design_job(case: Case) -> dict:
             result |= robustness_block(case, sizing.design.damper, robust=robust)
         else:
             result |= _bare_sweeps(load, settings)
+        result["recommended"] = _recommended(case, load, result)
         return result
 
     return _with_notes(build, case)
+
+
+def _recommended(case: Case, load: LoadedMode, result: dict) -> dict:
+    """The ``recommended`` block (:mod:`tmd.recommend`) on the band check, which always runs."""
+    from tmd.recommend import recommendation
+
+    band = result.get("frequency_band", robustness_settings(case).frequency_band)
+    bare_band = (result["bare"].get("peak_acceleration_band_max_m_s2")
+                 if result["design"] is None else None)
+    block = recommendation(result, bare_band_max_m_s2=bare_band, frequency_band=band)
+    if block["design_key"] not in (None, "design"):
+        # The extreme-wind checks of the design actually recommended.
+        chosen = result[block["design_key"]]
+        damper = TunedMassDamper(chosen["mass_ratio"], chosen["frequency_ratio"],
+                                 chosen["damping_ratio"])
+        design = evaluate_tmd(load, damper, case.target_peak_m_s2)
+        rows = None
+        if case.wind_loads:
+            rows = [{"return_period_years": row["return_period_years"], "design": row["design"]}
+                    for row in by_return_period(case, design)]
+            block["by_return_period"] = rows
+        block |= extreme_checks(case, design, rows, subject="the recommended design")
+    return block
 
 
 def robustness_settings(case: Case) -> RobustnessTable:
@@ -445,7 +473,8 @@ def compare_job(case: Case) -> dict:
             return compare_options(
                 load, case.target_peak_m_s2, enabled=None if opts is None else opts.enabled,
                 max_mass_ratio=case.damper.max_mass_ratio,
-                max_stroke_m=case.damper.max_stroke_m, frequency_band=band)
+                max_stroke_m=case.damper.max_stroke_m, frequency_band=band,
+                tmd_sizing=size_damper(case))
 
     return _with_notes(build, case)
 

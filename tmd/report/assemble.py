@@ -17,7 +17,7 @@ from tmd.defaults import FREQUENCY_BAND
 from tmd.jobs import loaded_mode_of
 from tmd.report import plots, series
 from tmd.report.comfort import comfort_limits
-from tmd.report.extremes import end_stop_tables
+from tmd.report.extremes import end_stop_tables, recommendation_blocks
 from tmd.report.html import Callout, Figure, Section, document
 from tmd.report.progress import StepCallback, quiet_step
 from tmd.report.tables import (
@@ -194,6 +194,8 @@ class _Report:
             self._table(table),
             self._table(key_value_table("target", "Target", r["target"], "target")),
         ]
+        if r.get("recommended"):
+            blocks += recommendation_blocks(r["recommended"], self._table)
         return Section("The job and the case", blocks)
 
     def inputs_section(self) -> Section:
