@@ -85,8 +85,9 @@ def recommendation_blocks(block: dict, keep) -> list:
     which = {"robust_design": "the band-robust design (results key robust_design)",
              "design": "the nominal design (results key design)",
              None: "no damper"}[block.get("design_key")]
-    out = [Callout(f"Recommended: {which}. {block['why']}"),
-           keep(key_value_table("recommended", "Recommended specification", block,
+    # Without a damper the damper section states the outcome in its own callout.
+    out = [Callout(f"Recommended: {which}. {block['why']}")] if block.get("design_key") else []
+    out += [keep(key_value_table("recommended", "Recommended specification", block,
                                 "recommended", keys=RECOMMENDED_KEYS,
                                 note=f"Rule: {block['rule']}."))]
     if block.get("end_stops"):
