@@ -77,8 +77,8 @@ def _return_period_row(case: Case, design: TmdDesign | None, wind_load: WindLoad
             "sigma_acceleration_m_s2", "peak_acceleration_m_s2", "sigma_stroke_m",
             "peak_stroke_m", "peak_damper_force_n", "effective_damping_ratio")}
         if case.damper.max_stroke_m is not None:  # checked at every return period
-            row["design"]["stroke_within_limit"] = bool(
-                d.peak_stroke_m <= case.damper.max_stroke_m)
+            row["design"]["stroke_within_limit"] = meets_target(d.peak_stroke_m,
+                                                                case.damper.max_stroke_m)
     return row
 
 
