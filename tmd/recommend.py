@@ -71,10 +71,10 @@ def recommendation(result: dict, *, bare_band_max_m_s2: float | None = None,
                       "meets_target_across_band": met}
             block["why"] = (
                 f"no damper: the bare building meets the target {target:.4g} m/s^2 at nominal "
-                f"and across ±{100 * frequency_band:g}% (worst {bare_band_max_m_s2:.4g} m/s^2)"
+                f"and across +/-{100 * frequency_band:g}% (worst {bare_band_max_m_s2:.4g} m/s^2)"
                 if met else
                 f"the bare building meets the target {target:.4g} m/s^2 at nominal but not "
-                f"across ±{100 * frequency_band:g}% (worst {bare_band_max_m_s2:.4g} m/s^2): a "
+                f"across +/-{100 * frequency_band:g}% (worst {bare_band_max_m_s2:.4g} m/s^2): a "
                 "damper is needed if the built frequency may lie there; size one with a fixed "
                 "mass_ratio or a tighter target")
         else:
@@ -92,15 +92,15 @@ def recommendation(result: dict, *, bare_band_max_m_s2: float | None = None,
         if nominal_met or not robust:
             chosen, key = design | {"peak_acceleration_band_max_m_s2": nominal_band,
                                     "meets_target_across_band": nominal_met}, "design"
-            why = (f"the nominal design already meets the target across ±"
+            why = (f"the nominal design already meets the target across +/-"
                    f"{100 * frequency_band:g}% (worst {nominal_band:.4g} m/s^2)"
                    if nominal_met else
-                   f"the nominal design exceeds the target across ±{100 * frequency_band:g}% "
+                   f"the nominal design exceeds the target across +/-{100 * frequency_band:g}% "
                    f"(worst {nominal_band:.4g} m/s^2) and no band-robust design was sized "
                    "([robustness] robust_design = false)")
         else:
             chosen, key = robust, "robust_design"
-            why = (f"the nominal design's worst peak across ±{100 * frequency_band:g}% is "
+            why = (f"the nominal design's worst peak across +/-{100 * frequency_band:g}% is "
                    f"{nominal_band:.4g} m/s^2, above the target {target:.4g} m/s^2; the "
                    f"band-robust design ({robust['mass_kg'] / 1000:,.1f} t against "
                    f"{design['mass_kg'] / 1000:,.1f} t) "
