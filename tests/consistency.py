@@ -33,7 +33,8 @@ DESIGN_KEYS = frozenset({
     "peak_damper_force_n", "sigma_displacement_m", "effective_damping_ratio",
     "added_damping_ratio", "meets_target",
 })
-GOVERNED_BY = frozenset({"target", "stroke", "mass", "bare", "fixed mass ratio", "band"})
+GOVERNED_BY = frozenset({"target", "stroke", "mass", "bare", "fixed mass ratio", "band",
+                         "minimum"})
 
 # SI unit suffixes of the project's keys (README "Case files" and
 # "results.json"); `_years` is the documented unit of return periods.

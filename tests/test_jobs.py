@@ -122,3 +122,11 @@ def test_issue_example_bare_kestrel_fails_in_the_band(kestrel_case):
     assert nominal == pytest.approx(0.0785, abs=5e-5) and nominal <= 0.079
     assert worst.peak_acceleration_m_s2 == pytest.approx(0.0887, abs=5e-4)  # the issue's 3 digits
     assert worst.structure_frequency_factor == pytest.approx(0.85)
+
+
+def test_a_start_that_meets_is_a_design_not_bad_input():
+    # Issue 13, defect 4: target 0.2125 (bare 0.212505) exited 2 with "f(a)
+    # and f(b) must have different signs"; the smallest mass searched meets.
+    r = _design(0.2125)
+    assert r["sizing"]["governed_by"] == "minimum" and r["design"]["mass_ratio"] == 1e-4
+    assert r["design"]["meets_target"] is True
