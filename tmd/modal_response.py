@@ -280,7 +280,7 @@ def extended_transfer(frequency_hz, frequency_s_hz, generalised_mass, damping_ra
 
 def modal_response(frequency_hz, generalised_mass, damping_ratio, absorbers: Absorbers,
                    participation, load: CrossSpectrum, outputs: OutputRows, *,
-                   nodes_per_pole: int = NODES_PER_POLE) -> OutputMoments:
+                   pairs=None, nodes_per_pole: int = NODES_PER_POLE) -> OutputMoments:
     """Spectral moment matrices of a group of outputs for a batch of designs.
 
     Parameters
@@ -302,6 +302,9 @@ def modal_response(frequency_hz, generalised_mass, damping_ratio, absorbers: Abs
         One-sided cross-spectral matrix of the modal forces [N^2/Hz].
     outputs : OutputRows
         Rows over (q, r, p) with their derivative orders; n + 2 N columns.
+    pairs : array of int, shape (K, 2), optional
+        Compute only the diagonal and these (i, j) entries of the moment
+        matrices (the others are NaN); default the full matrices.
     nodes_per_pole : int
         Gauss-Legendre nodes per pole panel.
 
@@ -342,15 +345,33 @@ def modal_response(frequency_hz, generalised_mass, damping_ratio, absorbers: Abs
         grid, *(np.broadcast_to(np.atleast_1d(np.asarray(v, float)), batch + (n,))
                 for v in (frequency_hz, generalised_mass, damping_ratio)),
         _broadcast(absorbers, batch), np.broadcast_to(phi, batch + (count, n)))
-    h = np.einsum("ok,...fkn->...fon", outputs.rows, ext)
+    h = np.matmul(outputs.rows, ext)  # (..., F, o, n)
     h = h * ((1j * TWO_PI * grid)[..., None] ** outputs.order)[..., None]
     if isinstance(load, UncorrelatedForces):
         hs = h * load.diagonal(grid)[..., None, :]
     else:
-        hs = np.einsum("...foi,...fij->...foj", h, load(grid))
+        hs = np.matmul(h, load(grid))
     hc = np.conj(h)
-    moments = [np.einsum("...f,...foj,...fpj->...op", weight * grid**power, hs, hc)
-               for power in (0, 1, 2)]
+    powers = np.stack([weight * grid**k for k in (0, 1, 2)], axis=-2)  # (..., 3, F)
+    if pairs is None:
+        moments = list(np.moveaxis(np.einsum("...kf,...foj,...fpj->...kop", powers, hs, hc),
+                                   -3, 0))
+    else:
+        # Only the diagonal and the requested pairs: (F, o + K) products, not (F, o, o).
+        pick = np.asarray(pairs, dtype=int).reshape(-1, 2)
+        products = np.concatenate([np.sum(hs * hc, axis=-1),
+                                   np.sum(hs[..., pick[:, 0], :] * hc[..., pick[:, 1], :],
+                                          axis=-1)], axis=-1)
+        values = np.matmul(powers, products)  # (..., 3, o + K)
+        o = outputs.count
+        moments = []
+        for k in range(3):
+            m = np.full(batch + (o, o), np.nan, dtype=complex)
+            idx = np.arange(o)
+            m[..., idx, idx] = values[..., k, :o]
+            m[..., pick[:, 0], pick[:, 1]] = values[..., k, o:]
+            m[..., pick[:, 1], pick[:, 0]] = np.conj(values[..., k, o:])
+            moments.append(m)
     share0, share2 = _top_decade(grid, weight, hs, hc, moments, load.f_max_hz)
     return OutputMoments(*moments, share0, share2, outputs.names)
 

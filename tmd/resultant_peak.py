@@ -49,11 +49,12 @@ import numpy as np
 from scipy.special import ndtr
 
 TWO_PI = 2.0 * np.pi
-ANGLE_NODES = 256  # the integrand is smooth and periodic in the angle: trapezoid rule
-LEVEL_NODES = 600
-# Levels run to this many times the larger principal rms; exp(-r^2/2) is
-# ~1e-22 there, so the tail of the mean-maximum integral is negligible.
-LEVEL_REACH = 10.0
+ANGLE_NODES = 128  # the integrand is smooth and periodic in the angle: trapezoid rule
+# Levels in units of the larger principal rms: Gauss-Legendre panels, dense
+# where 1 - exp(-nu T) falls from 1 to 0; exp(-r^2/2) is ~1e-22 at 10, so the
+# tail beyond is negligible.
+LEVEL_PANELS = (0.0, 2.0, 3.0, 4.0, 5.0, 6.5, 10.0)
+NODES_PER_LEVEL_PANEL = 20
 # A pair whose smaller principal variance is below this fraction of the
 # larger is treated as one component (the disc's boundary density degenerates).
 DEGENERATE = 1e-10
@@ -67,7 +68,7 @@ def resultant_outcrossing_rate(m0, m1, m2, level):
     m0, m1, m2 : arrays, shape batch + (2, 2), complex
         Spectral moment matrices of the pair [unit^2 Hz^k] (see
         :class:`tmd.modal_response.OutputMoments`).
-    level : array, shape (L,)
+    level : array, shape (L,) or batch + (L,)
         Radii r [unit].
 
     Returns
@@ -88,13 +89,14 @@ def resultant_outcrossing_rate(m0, m1, m2, level):
     quad_form = np.einsum("ai,...ij,aj->...a", normal, inv, normal)
     det = np.linalg.det(sxx)
     density_unit = 1.0 / (TWO_PI * np.sqrt(det))[..., None]  # times exp(-r^2 q / 2)
-    mu = mean_unit[..., None, :] * r[:, None]
+    mu = mean_unit[..., None, :] * r[..., :, None]
     ss = s[..., None, :]
     with np.errstate(divide="ignore", invalid="ignore"):
         u = np.where(ss > 0, mu / ss, np.sign(mu) * np.inf)
         plus = np.where(ss > 0, ss * np.exp(-0.5 * u**2) / np.sqrt(TWO_PI) + mu * ndtr(u),
                         np.maximum(mu, 0.0))
-    density = density_unit[..., None, :] * np.exp(-0.5 * r[:, None] ** 2 * quad_form[..., None, :])
+    density = density_unit[..., None, :] * np.exp(-0.5 * r[..., :, None] ** 2
+                                                  * quad_form[..., None, :])
     return np.sum(plus * density, axis=-1) * r * (TWO_PI / ANGLE_NODES)
 
 
@@ -118,32 +120,40 @@ def mean_maximum_resultant(m0, m1, m2, duration_s):
         other, 2 nu_0 exp(-r^2 / 2 sigma^2).
     """
     m0, m1, m2 = (np.asarray(m, complex) for m in (m0, m1, m2))
-    batch = m0.shape[:-2]
-    m0, m1, m2 = (m.reshape(-1, 2, 2) for m in (m0, m1, m2))
+    batch = np.broadcast_shapes(m0.shape, m1.shape, m2.shape)[:-2]
+    m0, m1, m2 = (np.broadcast_to(m, batch + (2, 2)).reshape(-1, 2, 2) for m in (m0, m1, m2))
     eig = np.linalg.eigvalsh(np.real(m0))
-    scale = np.sqrt(np.maximum(eig[:, -1], 0.0))
-    unit = np.linspace(0.0, LEVEL_REACH, LEVEL_NODES)  # levels per larger principal rms
-    out = np.zeros(m0.shape[0])
-    for k in range(m0.shape[0]):
-        if eig[k, 0] > DEGENERATE * eig[k, -1]:
-            rate = resultant_outcrossing_rate(m0[k], m1[k], m2[k], unit * scale[k])
-            rate = rate * _clumping(m0[k], m1[k], m2[k], unit * scale[k])
-            sigma = scale[k]
-        else:
-            total0 = max(float(np.real(np.trace(m0[k]))), 1e-300)
-            nu0 = np.sqrt(float(np.real(np.trace(m2[k]))) / total0)
-            rate = 2.0 * nu0 * np.exp(-0.5 * unit**2)
-            rate = rate * _clumping(m0[k], m1[k], m2[k], unit * np.sqrt(total0), components=1)
-            sigma = np.sqrt(total0)
-        out[k] = np.trapezoid(1.0 - np.exp(-rate * duration_s), unit) * sigma
+    degenerate = eig[:, 0] <= DEGENERATE * eig[:, -1]
+    # Regular pairs: levels per larger principal rms; a degenerate pair is
+    # one component |X| with sigma^2 = trace m0.
+    total0 = np.maximum(np.real(np.trace(m0, axis1=-2, axis2=-1)), 1e-300)
+    sigma = np.where(degenerate, np.sqrt(total0), np.sqrt(np.maximum(eig[:, -1], 0.0)))
+    unit, unit_weight = _level_nodes()
+    level = unit * sigma[:, None]
+    regular = np.where(degenerate[:, None, None], np.eye(2), np.real(m0)) + 0j
+    rate = resultant_outcrossing_rate(regular, np.where(degenerate[:, None, None], 0.0, m1),
+                                      np.where(degenerate[:, None, None], np.eye(2), m2), level)
+    nu0 = np.sqrt(np.real(np.trace(m2, axis1=-2, axis2=-1)) / total0)
+    rate = np.where(degenerate[:, None], 2.0 * nu0[:, None] * np.exp(-0.5 * unit**2), rate)
+    rate = rate * _clumping(m0, m1, m2, level, np.where(degenerate, 1, 2))
+    out = np.sum((1.0 - np.exp(-rate * duration_s)) * unit_weight, axis=-1) * sigma
     return out.reshape(batch)
 
 
-def _clumping(m0, m1, m2, level, components=2):
+def _level_nodes():
+    x, w = np.polynomial.legendre.leggauss(NODES_PER_LEVEL_PANEL)
+    edges = np.asarray(LEVEL_PANELS)
+    lo, hi = edges[:-1, None], edges[1:, None]
+    return ((0.5 * (lo + hi) + 0.5 * (hi - lo) * x).ravel(),
+            (0.5 * (hi - lo) * w).ravel())
+
+
+def _clumping(m0, m1, m2, level, components):
     """Vanmarcke's share of crossings that start a clump, adapted to the pair."""
-    t0, t1, t2 = (float(np.real(np.trace(m))) for m in (m0, m1, m2))
-    q = np.sqrt(max(1.0 - t1**2 / (t0 * t2), 0.0))
-    x = np.asarray(level, float) / np.sqrt(t0 / components)
+    t0, t1, t2 = (np.real(np.trace(m, axis1=-2, axis2=-1)) for m in (m0, m1, m2))
+    with np.errstate(divide="ignore", invalid="ignore"):
+        q = np.sqrt(np.clip(1.0 - t1**2 / (t0 * t2), 0.0, 1.0))[..., None]
+    x = np.asarray(level, float) / np.sqrt(t0 / components)[..., None]
     with np.errstate(divide="ignore", invalid="ignore"):
         factor = (1.0 - np.exp(-np.sqrt(np.pi / 2) * q**1.2 * x)) / (1.0 - np.exp(-0.5 * x**2))
     return np.where(x > 0, np.minimum(np.nan_to_num(factor, nan=1.0), 1.0), 1.0)
