@@ -130,7 +130,8 @@ class TabulatedCrossSpectrum:
         Strictly increasing, positive frequencies [Hz].
     matrix : array, shape (F, n, n), complex
         S_F at each frequency [N^2/Hz]; Hermitian, positive semi-definite,
-        positive diagonal (see :func:`cross_spectrum_problem`).
+        positive diagonal, or a mode's row zero throughout (see
+        :func:`cross_spectrum_problem`).
     source : str
         Where the table came from (shown in results).
     """
@@ -140,6 +141,7 @@ class TabulatedCrossSpectrum:
     source: str = ""
     _log_f: np.ndarray = field(init=False, repr=False, compare=False)
     _log_d: np.ndarray = field(init=False, repr=False, compare=False)
+    _active: np.ndarray = field(init=False, repr=False, compare=False)
     _coherency: np.ndarray = field(init=False, repr=False, compare=False)
 
     def __post_init__(self):
@@ -149,12 +151,17 @@ class TabulatedCrossSpectrum:
         if problem:
             raise ValueError(problem)
         d = np.real(np.diagonal(s, axis1=-2, axis2=-1))
-        root = np.sqrt(d)
+        active = np.all(d > 0, axis=0)  # a mode with no force at all has d = 0 throughout
+        safe = np.where(active, d, 1.0)
+        root = np.sqrt(safe)
+        coherency = s / (root[:, :, None] * root[:, None, :])
+        coherency = coherency * (active[:, None] & active[None, :])
         object.__setattr__(self, "frequency_hz", f)
         object.__setattr__(self, "matrix", s)
         object.__setattr__(self, "_log_f", np.log(f))
-        object.__setattr__(self, "_log_d", np.log(d))
-        object.__setattr__(self, "_coherency", s / (root[:, :, None] * root[:, None, :]))
+        object.__setattr__(self, "_log_d", np.log(safe))
+        object.__setattr__(self, "_active", active)
+        object.__setattr__(self, "_coherency", coherency)
 
     @property
     def size(self) -> int:
@@ -188,7 +195,7 @@ class TabulatedCrossSpectrum:
         fc = np.where(inside, f, self.f_min_hz)
         n = self.size
         logf = np.log(fc)
-        d = np.stack([np.exp(np.interp(logf, self._log_f, self._log_d[:, i]))
+        d = np.stack([np.exp(np.interp(logf, self._log_f, self._log_d[:, i])) * self._active[i]
                       for i in range(n)], axis=-1)
         coh = np.empty(f.shape + (n, n), dtype=complex)
         for i in range(n):
@@ -240,10 +247,12 @@ def cross_spectrum_problem(frequency_hz: np.ndarray, matrix: np.ndarray) -> str:
         bad = int(np.flatnonzero(~np.all(np.isfinite(s), axis=(1, 2)))[0])
         return f"at {f[bad]:g} Hz the matrix has a value that is not finite"
     diag = np.real(np.diagonal(s, axis1=1, axis2=2))
-    if np.any(diag <= 0):
-        k, i = (int(v[0]) for v in np.nonzero(diag <= 0))
+    idle = np.all(diag == 0, axis=0)  # a mode with no force at all
+    bad_diag = (diag <= 0) & ~idle
+    if np.any(bad_diag):
+        k, i = (int(v[0]) for v in np.nonzero(bad_diag))
         return (f"at {f[k]:g} Hz the auto-spectrum of mode {i + 1} is {diag[k, i]!r}; "
-                "auto-spectra must be > 0")
+                "auto-spectra must be > 0 (or zero at every frequency)")
     scale = np.max(np.abs(s), axis=(1, 2))
     asym = np.max(np.abs(s - np.conj(np.swapaxes(s, 1, 2))), axis=(1, 2))
     if np.any(asym > HERMITIAN_RTOL * scale):

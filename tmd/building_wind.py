@@ -1,0 +1,128 @@
+"""Along-wind strip loading of the building's n modes, per wind direction.
+
+For a wind blowing along the plan unit vector e (the direction it travels),
+every strip's quasi-steady fluctuating drag acts along e through the plan
+origin (x0, y0), so mode i's generalised force is the strip sum weighted by
+the mode's sway projected on the wind direction,
+
+    psi_i(z) = phi_x,i(z) e_x + phi_y,i(z) e_y,
+
+and the modal forces of one direction are correlated: their cross-spectra are
+the strip double sums (:func:`tmd.loads.generalized_force_psd`) with two
+different weights, S_ij = w_i^T C w_j. The root-coherence is real, so S_ij
+is real; it follows from the one-mode quadratic form by polarisation,
+S_ij = (S(psi_i + psi_j) - S(psi_i - psi_j)) / 4. The drag through the origin
+gives no torsional moment: torsional and across-wind loads are not in this
+model (give them as tables).
+
+Wind direction is where the wind comes from, in degrees clockwise from north;
+the building's orientation is the bearing of its +y axis, clockwise from
+north. The wind then travels along e = -(sin a, cos a) in plan axes, with
+a = direction - orientation.
+
+References
+----------
+Davenport, A. G. (1962). The response of slender, line-like structures to a
+gusty wind. Proc. ICE 23, 389-408 (quasi-steady strip loading, from memory).
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from tmd.building_modes import BuildingMode
+from tmd.cross_spectra import TabulatedCrossSpectrum
+from tmd.loads import (
+    DEFAULT_FREQUENCY_HZ,
+    Building,
+    generalized_force_psd,
+    height_strips,
+    reference_height,
+)
+from tmd.wind.turbulence import velocity_spectrum
+
+
+def wind_travel_vector(direction_deg: float, orientation_deg: float) -> np.ndarray:
+    """Plan unit vector along which the wind travels.
+
+    Parameters
+    ----------
+    direction_deg : float
+        Where the wind comes from, clockwise from north [deg].
+    orientation_deg : float
+        Bearing of the building's +y axis, clockwise from north [deg].
+
+    Returns
+    -------
+    array (2,)
+        (e_x, e_y) in the building's plan axes [-].
+    """
+    a = math.radians(direction_deg - orientation_deg)
+    return -np.array([math.sin(a), math.cos(a)])
+
+
+def strip_cross_spectrum(site, modes: tuple[BuildingMode, ...], *, height_m: float,
+                         breadth_m: float, depth_m: float, drag_coefficient: float,
+                         travel: np.ndarray, return_period_years: float,
+                         spectrum: str = "eurocode", coherence: str = "exponential",
+                         n_strips: int = 40, frequency_hz=None) -> TabulatedCrossSpectrum:
+    """Modal force cross-spectral matrix of one wind direction [N^2/Hz].
+
+    Parameters
+    ----------
+    site : tmd.wind.Site
+        The site, with any directional factor already applied to its speed.
+    modes : tuple of BuildingMode
+        The modes.
+    height_m : float
+        Building height [m].
+    breadth_m, depth_m : float
+        Face breadth normal to this wind and depth along it [m].
+    drag_coefficient : float
+        Drag (force) coefficient for this direction [-].
+    travel : array (2,)
+        Unit vector the wind travels along (:func:`wind_travel_vector`).
+    return_period_years : float
+        Return period of the mean wind speed [years].
+    spectrum, coherence : str
+        Turbulence spectrum and coherence model (see :mod:`tmd.loads`).
+    n_strips : int
+        Strips over the height.
+    frequency_hz : array, optional
+        Table frequencies [Hz]; default as :func:`tmd.loads.modal_force_spectrum`.
+
+    Returns
+    -------
+    TabulatedCrossSpectrum
+        A mode with no sway along the wind gets a zero row.
+    """
+    f = DEFAULT_FREQUENCY_HZ if frequency_hz is None else np.asarray(frequency_hz, float)
+    building = Building(height_m, breadth_m, depth_m, drag_coefficient)
+    z, dz = height_strips(height_m, n_strips)
+    speed = site.mean_speed(z, return_period_years)
+    psd = velocity_spectrum(site, z[None, :], f[:, None], return_period_years, spectrum)
+    weights = [m.shape.values(z)[:, :2] @ travel for m in modes]
+    admittance_speed = float(site.mean_speed(reference_height(site, building),
+                                             return_period_years))
+
+    def form(shape):
+        return generalized_force_psd(f, z, dz, shape, speed, psd, breadth_m=breadth_m,
+                                     drag_coefficient=drag_coefficient,
+                                     air_density_kg_m3=site.air_density_kg_m3,
+                                     coherence=coherence, admittance_speed=admittance_speed)
+
+    n = len(modes)
+    active = [bool(np.any(np.abs(w) > 1e-12)) for w in weights]
+    matrix = np.zeros((f.size, n, n), dtype=complex)
+    for i in range(n):
+        if active[i]:
+            matrix[:, i, i] = form(weights[i])
+        for j in range(i):
+            if active[i] and active[j]:
+                cross = 0.25 * (form(weights[i] + weights[j]) - form(weights[i] - weights[j]))
+                matrix[:, i, j] = matrix[:, j, i] = cross
+    return TabulatedCrossSpectrum(f, matrix, source=(
+        f"along-wind strip model: {spectrum} spectrum, {coherence} coherence, "
+        f"T = {return_period_years:g} yr, {n_strips} strips"))
