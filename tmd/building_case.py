@@ -176,6 +176,8 @@ class BuildingCase:
         The raw TOML.
     directions : tuple of dict
         The wind directions as given (name, direction_deg, c_dir).
+    input_files : tuple of Path
+        The case file and every table it reads (never overwritten).
     """
 
     name: str
@@ -191,6 +193,7 @@ class BuildingCase:
     notes: tuple[str, ...] = ()
     inputs: dict[str, Any] = field(default_factory=dict)
     directions: tuple[dict, ...] = ()
+    input_files: tuple[Path, ...] = ()
 
 
 def is_building_case(path: str | Path) -> bool:
@@ -257,6 +260,9 @@ def load_building_case(path: str | Path) -> BuildingCase:
         for k, d in enumerate(dampers):
             _check_shape_at(path, f"[[dampers]] {k + 1} height_m", d.height_m, modes)
     model = BuildingModel(modes, plan, dampers)
+    if dampers and table.sizing is None:
+        raise CaseError(f"{path}: [sizing] max_mass_kg is required when [[dampers]] are placed "
+                        "(the largest total damper mass the least-mass search may use)")
     if (table.modal_loads is None) == (table.wind is None):
         raise CaseError(f"{path}: give either [modal_loads] (force tables) or [wind] with "
                         "[[wind_directions]], not both and not neither")
@@ -267,9 +273,12 @@ def load_building_case(path: str | Path) -> BuildingCase:
     if table.modal_loads is not None:
         spectrum, notes = _table_loads(path, table.modal_loads, len(modes))
         load = BuildingLoad("modal force tables", spectrum, model.damping_ratio)
+        files = [path.resolve()] + [(path.parent / f).resolve() for f in
+                                    table.modal_loads.force_psd_csv] + [
+            (path.parent / c.csv).resolve() for c in table.modal_loads.cross]
         return BuildingCase(design_loads=(load,), loads_by_period={None: (load,)},
                             target_return_period_years=table.target.return_period_years,
-                            notes=notes, **common)
+                            notes=notes, input_files=tuple(files), **common)
     return _wind_case(path, table, model, common)
 
 
@@ -460,7 +469,7 @@ def _wind_case(path: Path, table: BuildingCaseTable, model: BuildingModel, commo
     periods = sorted(set(w.return_periods_years) | {table.target.return_period_years})
     loads_by_period = {}
     directions = []
-    for k, d in enumerate(table.wind_directions):
+    for d in table.wind_directions:
         name = d.name or f"{d.direction_deg:g} deg"
         directions.append({"name": name, "direction_deg": d.direction_deg, "c_dir": d.c_dir})
     for period in periods:
@@ -481,7 +490,8 @@ def _wind_case(path: Path, table: BuildingCaseTable, model: BuildingModel, commo
     return BuildingCase(design_loads=loads_by_period[table.target.return_period_years],
                         loads_by_period=loads_by_period,
                         target_return_period_years=table.target.return_period_years,
-                        notes=(STRIP_NOTE,), directions=tuple(directions), **common)
+                        notes=(STRIP_NOTE,), directions=tuple(directions),
+                        input_files=(path.resolve(),), **common)
 
 
 def _site(path: Path, w: WindTable, c_dir: float) -> Site:

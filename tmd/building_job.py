@@ -25,7 +25,7 @@ from tmd.building_design import (
 )
 from tmd.building_response import BuildingAssessment, axis_absorbers
 from tmd.dampers.absorber import Absorbers
-from tmd.jobs import CAUTIONS, SCHEMA_VERSION
+from tmd.schema import CAUTIONS, SCHEMA_VERSION
 
 TWO_PI = 2.0 * math.pi
 BUILDING_CAUTIONS = (
@@ -68,12 +68,12 @@ def _build(case: BuildingCase) -> dict:
     tuning = sizing.tuning
     designed = (axis_absorbers(model, tuning.total_mass_kg, tuning.frequency_hz,
                                tuning.damping_ratio) if tuning is not None else None)
-    rows, axis_rows, damper_rows = [], [], []
-    governing = None
+    rows, axis_rows, damper_rows, governing_rows = [], [], [], []
     for period, loads in case.loads_by_period.items():
         bare = assess_loads(model, list(loads), case.duration_s, _bare_absorbers(case))
         damped = (assess_loads(model, list(loads), case.duration_s, designed)
                   if designed is not None else [None] * len(loads))
+        governing = None
         for load, b, d in zip(loads, bare, damped, strict=True):
             for p, point in enumerate(model.plan.points):
                 row = {"return_period_years": period, "wind_direction": load.name,
@@ -89,6 +89,7 @@ def _build(case: BuildingCase) -> dict:
                     governing = {"point": point.name, "wind_direction": load.name,
                                  "return_period_years": period, "component": component,
                                  "peak_acceleration_m_s2": worst}
+        governing_rows.append(governing)
     if designed is not None:
         damped = assess_loads(model, list(case.design_loads), case.duration_s, designed)
         axis_rows = _axis_blocks(case, tuning, damped)
@@ -118,15 +119,13 @@ def _build(case: BuildingCase) -> dict:
         "damper_axes": axis_rows,
         "dampers": damper_rows,
         "points": rows,
-        "governing": governing,
+        "governing": governing_rows,
     }
 
 
 def _size(case: BuildingCase) -> BuildingSizing:
-    if case.max_mass_kg is None:
-        raise ValueError(f"{case.path}: [sizing] max_mass_kg is required to size dampers")
     return least_building_mass(case.model, list(case.design_loads), case.duration_s,
-                               case.target_peak_m_s2, case.max_mass_kg)
+                               case.target_peak_m_s2, case.max_mass_kg or 0.0)
 
 
 def _point_block(a: BuildingAssessment, p: int) -> dict:

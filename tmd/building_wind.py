@@ -11,7 +11,7 @@ and the modal forces of one direction are correlated: their cross-spectra are
 the strip double sums (:func:`tmd.loads.generalized_force_psd`) with two
 different weights, S_ij = w_i^T C w_j. The root-coherence is real, so S_ij
 is real; it follows from the one-mode quadratic form by polarisation,
-S_ij = (S(psi_i + psi_j) - S(psi_i - psi_j)) / 4. The drag through the origin
+S_ij = (S(psi_i + psi_j) - S(psi_i) - S(psi_j)) / 2. The drag through the origin
 gives no torsional moment: torsional and across-wind loads are not in this
 model (give them as tables).
 
@@ -121,7 +121,8 @@ def strip_cross_spectrum(site, modes: tuple[BuildingMode, ...], *, height_m: flo
             matrix[:, i, i] = form(weights[i])
         for j in range(i):
             if active[i] and active[j]:
-                cross = 0.25 * (form(weights[i] + weights[j]) - form(weights[i] - weights[j]))
+                cross = 0.5 * (form(weights[i] + weights[j]) - matrix[:, i, i].real
+                               - matrix[:, j, j].real)
                 matrix[:, i, j] = matrix[:, j, i] = cross
     return TabulatedCrossSpectrum(f, matrix, source=(
         f"along-wind strip model: {spectrum} spectrum, {coherence} coherence, "

@@ -21,6 +21,8 @@ from rich.markup import escape
 from rich.table import Table
 
 from tmd import terminal
+from tmd.building_case import is_building_case, load_building_case
+from tmd.building_job import building_design_job, building_tables
 from tmd.case import CaseError, read_case
 from tmd.constants import STANDARD_GRAVITY
 from tmd.dampers.tuned_mass import TunedMassDamper
@@ -230,6 +232,9 @@ def design(case: CaseArg,
            out: Annotated[Path | None, typer.Option(
                help="Folder for results.json (default: out/<case file stem>).")] = None):
     """Size a TMD for the case and write DIR/results.json."""
+    if is_building_case(case):
+        _design_building(case, out)
+        return
     c, target = _case_and_output(case, out)
     result = design_job(c)
     out_console.print(_summary(result))
@@ -243,6 +248,50 @@ def design(case: CaseArg,
     _print_recommendation(result)
     _print_notes(result)
     _write(c, result, target)
+
+
+def _design_building(case_path: Path, out: Path | None) -> None:
+    """A whole-building case ([[modes]]): size the dampers, print, write JSON and CSV tables."""
+    folder = out if out is not None else Path("out") / case_path.stem
+    target = _OPEN.get().enter_context(OutputFolder(folder, protected=(case_path,)))
+    c = load_building_case(case_path)
+    target.protect(c.input_files)
+    result = building_design_job(c)
+    table = Table(title=f"{result['case']['name']}: peak accelerations [m/s²], design return "
+                  "period")
+    for column in ("wind", "point", "bare resultant", "damped x", "damped y",
+                   "damped resultant", "torsional share"):
+        table.add_column(column, justify="left" if column in ("wind", "point") else "right")
+    period = result["target"]["return_period_years"]
+    for row in result["points"]:
+        if row["return_period_years"] not in (period, None):
+            continue
+        d = row.get("damped", row["bare"])
+        table.add_row(row["wind_direction"], row["point"],
+                      f"{row['bare']['peak_resultant_m_s2']:.4f}",
+                      *(f"{v:.4f}" for v in d["peak_acceleration_m_s2"]),
+                      f"{d['peak_resultant_m_s2']:.4f}", f"{100 * d['torsional_share']:.0f}%")
+    out_console.print(table)
+    for axis in result["damper_axes"]:
+        out_console.print(escape(
+            f"{axis['damper']} {axis['direction']}: {axis['mass_kg'] / 1000:,.1f} t, "
+            f"{axis['frequency_hz']:.4f} Hz, damping ratio {axis['damping_ratio']:.3f}, "
+            f"peak stroke {axis['peak_stroke_m']:.3f} m, peak force "
+            f"{axis['peak_force_n'] / 1000:,.0f} kN"), highlight=False)
+    sizing = result["sizing"]
+    for g in result["governing"]:
+        period = g["return_period_years"]
+        when = f"{period:g}-year" if period is not None else "design load"
+        out_console.print(escape(f"governing, {when}: {g['point']}, wind {g['wind_direction']}, "
+                                 f"{g['component']}, {_accel(g['peak_acceleration_m_s2'])}"),
+                          highlight=False)
+    colour = "green" if sizing["meets_target"] else "red"
+    out_console.print(f"[{colour}]{escape(sizing['message'])}[/]", highlight=False)
+    _print_notes(result)
+    files = {"results.json": to_json(result)} | building_tables(result)
+    written = target.write(files)
+    out_console.print(escape(f"wrote {len(written)} files to {target.folder} (results.json, "
+                             "tables/)"), highlight=False, soft_wrap=True)
 
 
 def _case_and_output(case_path: Path, out: Path | None):

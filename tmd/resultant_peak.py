@@ -49,7 +49,7 @@ import numpy as np
 from scipy.special import ndtr
 
 TWO_PI = 2.0 * np.pi
-ANGLE_NODES = 128  # the integrand is smooth and periodic in the angle: trapezoid rule
+ANGLE_NODES = 96  # smooth and periodic in the whitened angle: trapezoid rule
 # Levels in units of the larger principal rms: Gauss-Legendre panels, dense
 # where 1 - exp(-nu T) falls from 1 to 0; exp(-r^2/2) is ~1e-22 at 10, so the
 # tail beyond is negligible.
@@ -57,7 +57,7 @@ LEVEL_PANELS = (0.0, 2.0, 3.0, 4.0, 5.0, 6.5, 10.0)
 NODES_PER_LEVEL_PANEL = 20
 # A pair whose smaller principal variance is below this fraction of the
 # larger is treated as one component (the disc's boundary density degenerates).
-DEGENERATE = 1e-10
+DEGENERATE = 1e-9
 
 
 def resultant_outcrossing_rate(m0, m1, m2, level):
@@ -78,26 +78,36 @@ def resultant_outcrossing_rate(m0, m1, m2, level):
     """
     sxx, sxv, svv = _covariances(m0, m1, m2)
     r = np.asarray(level, float)
-    angle = np.linspace(0.0, TWO_PI, ANGLE_NODES, endpoint=False)
-    normal = np.stack([np.cos(angle), np.sin(angle)], axis=-1)  # (A, 2)
+    # The boundary density concentrates near the major axis of an elongated
+    # covariance; parametrise the circle by the angle t of the whitened
+    # coordinates, n = L u(t) / |L u(t)| with L = S_xx^(1/2), so that the
+    # integrand is smooth in t (d phi / dt = det L / |L u|^2).
+    lam, vec = np.linalg.eigh(sxx)
+    root = np.einsum("...ij,...j,...kj->...ik", vec, np.sqrt(np.maximum(lam, 0.0)), vec)
+    t = np.linspace(0.0, TWO_PI, ANGLE_NODES, endpoint=False)
+    u = np.stack([np.cos(t), np.sin(t)], axis=-1)  # (A, 2)
+    lu = np.einsum("...ij,aj->...ai", root, u)
+    length2 = np.sum(lu**2, axis=-1)
+    normal = lu / np.sqrt(length2)[..., None]  # (..., A, 2)
+    dphi = np.sqrt(np.maximum(np.prod(lam, axis=-1), 0.0))[..., None] / length2
     inv = np.linalg.inv(sxx)
-    gain = np.einsum("...ij,...jk->...ik", np.swapaxes(sxv, -1, -2), inv)  # S_vx S_xx^-1
+    gain = np.einsum("...ji,...jk->...ik", sxv, inv)  # S_vx S_xx^-1
     cond = svv - np.einsum("...ij,...jk->...ik", gain, sxv)
     # Per unit radius: mean of Z is r * (n^T gain n), its variance n^T cond n.
-    mean_unit = np.einsum("ai,...ij,aj->...a", normal, gain, normal)
-    s = np.sqrt(np.maximum(np.einsum("ai,...ij,aj->...a", normal, cond, normal), 0.0))
-    quad_form = np.einsum("ai,...ij,aj->...a", normal, inv, normal)
-    det = np.linalg.det(sxx)
-    density_unit = 1.0 / (TWO_PI * np.sqrt(det))[..., None]  # times exp(-r^2 q / 2)
+    mean_unit = np.einsum("...ai,...ij,...aj->...a", normal, gain, normal)
+    s = np.sqrt(np.maximum(np.einsum("...ai,...ij,...aj->...a", normal, cond, normal), 0.0))
+    quad_form = np.einsum("...ai,...ij,...aj->...a", normal, inv, normal)
+    density_unit = 1.0 / (TWO_PI * np.sqrt(np.linalg.det(sxx)))[..., None]
     mu = mean_unit[..., None, :] * r[..., :, None]
     ss = s[..., None, :]
     with np.errstate(divide="ignore", invalid="ignore"):
-        u = np.where(ss > 0, mu / ss, np.sign(mu) * np.inf)
-        plus = np.where(ss > 0, ss * np.exp(-0.5 * u**2) / np.sqrt(TWO_PI) + mu * ndtr(u),
+        z = np.where(ss > 0, mu / ss, np.sign(mu) * np.inf)
+        plus = np.where(ss > 0, ss * np.exp(-0.5 * z**2) / np.sqrt(TWO_PI) + mu * ndtr(z),
                         np.maximum(mu, 0.0))
     density = density_unit[..., None, :] * np.exp(-0.5 * r[..., :, None] ** 2
                                                   * quad_form[..., None, :])
-    return np.sum(plus * density, axis=-1) * r * (TWO_PI / ANGLE_NODES)
+    weight = (dphi * (TWO_PI / ANGLE_NODES))[..., None, :]
+    return np.sum(plus * density * weight, axis=-1) * r
 
 
 def mean_maximum_resultant(m0, m1, m2, duration_s):
