@@ -10,11 +10,11 @@ from tests.reference import two_dof_state, white_force_covariance
 from tmd.building_case import load_building_case
 from tmd.building_modes import BuildingMode, BuildingModel, DamperPlacement, ModeShape, Plan
 from tmd.building_response import assess_building, axis_absorbers
-from tmd.case import load_case
+from tmd.case import read_case
 from tmd.cli import app
 from tmd.cross_spectra import UncorrelatedForces
 from tmd.dampers.absorber import single_tmd
-from tmd.jobs import load_case_of
+from tmd.jobs import loaded_mode_of
 from tmd.modal_response import OutputRows, modal_response
 from tmd.spectra import WhiteSpectrum, write_force_psd_csv
 
@@ -73,10 +73,10 @@ max_mass_kg = 1e6
 [modal_loads]
 force_psd_csv = ["f.csv"]
 """))
-    single = load_case(tmp_path / "a.toml")
+    single = read_case(tmp_path / "a.toml")
     building = load_building_case(tmp_path / "b.toml")
     mu, ratio, zeta = 0.015, 0.98, 0.06
-    a = load_case_of(single).assess(single_tmd(0.2, 1.5e7, mu, ratio, zeta))
+    a = loaded_mode_of(single).assess(single_tmd(0.2, 1.5e7, mu, ratio, zeta))
     b = assess_building(building.model, building.design_loads[0].spectrum, 600.0,
                         axis_absorbers(building.model, mu * 1.5e7, [0.2 * ratio], [zeta]))
     np.testing.assert_allclose(b.sigma_acceleration_m_s2[0, 0], a.sigma_acceleration_m_s2,

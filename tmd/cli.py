@@ -257,8 +257,8 @@ def _design_building(case_path: Path, out: Path | None) -> None:
     c = load_building_case(case_path)
     target.protect(c.input_files)
     result = building_design_job(c)
-    table = Table(title=f"{result['case']['name']}: peak accelerations [m/s²], design return "
-                  "period")
+    table = Table(title=escape(f"{result['case']['name']}: peak accelerations [m/s²], design "
+                               "return period"))
     for column in ("wind", "point", "bare resultant", "damped x", "damped y",
                    "damped resultant", "torsional share"):
         table.add_column(column, justify="left" if column in ("wind", "point") else "right")
@@ -288,10 +288,14 @@ def _design_building(case_path: Path, out: Path | None) -> None:
     colour = "green" if sizing["meets_target"] else "red"
     out_console.print(f"[{colour}]{escape(sizing['message'])}[/]", highlight=False)
     _print_notes(result)
-    files = {"results.json": to_json(result)} | building_tables(result)
+    # Imported here: matplotlib is only needed by the commands that write a report.
+    from tmd.report.building import building_report
+
+    files = ({"results.json": to_json(result)} | building_tables(result)
+             | building_report(result))
     written = target.write(files)
     out_console.print(escape(f"wrote {len(written)} files to {target.folder} (results.json, "
-                             "tables/)"), highlight=False, soft_wrap=True)
+                             "report.html, tables/)"), highlight=False, soft_wrap=True)
 
 
 def _case_and_output(case_path: Path, out: Path | None):
