@@ -291,3 +291,7 @@ def test_small_building_design_job_writes_results_and_tables(tmp_path):
     table = (tmp_path / "o" / "tables" / "building_points.csv").read_text().splitlines()
     assert table[0].startswith("return_period_years,wind_direction,point")
     assert len(table) == 1 + 2 * 4  # bare and damped at four corners
+    # The report's cells carry the results values they print (traceable by key path).
+    html = (tmp_path / "o" / "report.html").read_text()
+    assert f'data-key="damper_axes.0.mass_kg" data-value="{axes[0]["mass_kg"]!r}"' in html
+    assert "Preliminary sizing only" in html
