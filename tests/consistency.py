@@ -55,6 +55,8 @@ _DIMENSIONLESS_KEYS = frozenset({
     # EN 1991-1-4 Annex B quantities of the wind job (B.3, B.7, B.8, F.15).
     "size_reduction_height", "size_reduction_breadth", "log_decrement_total",
     "peak_factor_acceleration",
+    # Reduced velocity U_H / (f_s b) of the vortex-shedding check (issue 10's key).
+    "reduced_velocity",
 })
 # Relative slack for comparisons between two separate engine evaluations of
 # the same design (one batched, one single): rounding differences only.

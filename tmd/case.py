@@ -49,7 +49,15 @@ from tmd.rules import (
 )
 from tmd.spectra import ForceSpectrum, SpectrumFileError, read_force_psd_csv, read_text_file
 from tmd.structure import Mode
-from tmd.wind import SPECTRUM_MODELS, TERRAIN_CATEGORIES, Site
+from tmd.wind import AIR_DENSITY_KG_M3, SPECTRUM_MODELS, TERRAIN_CATEGORIES, Site
+from tmd.wind.boundary_layer import PROFILE_MODELS
+from tmd.wind_setup import (
+    AirDensity,
+    across_wind_block,
+    across_wind_spectrum,
+    make_site,
+    wind_table_problem,
+)
 
 
 class CaseError(InputError):
@@ -120,7 +128,7 @@ class BuildingTable(_Table):
 
 
 class WindTable(_Table):
-    terrain: Literal[tuple(TERRAIN_CATEGORIES)]  # type: ignore[valid-type]
+    terrain: Literal[tuple(TERRAIN_CATEGORIES)] | None = None  # type: ignore[valid-type]
     basic_speed_m_s: Speed | None = None
     reference_height_m: Positive | None = None
     reference_mean_speed_m_s: Speed | None = None
@@ -133,6 +141,20 @@ class WindTable(_Table):
     n_strips: Annotated[int, Field(ge=4, le=400)] = 40
     return_periods_years: unique_list(ReturnPeriod, MAX_RETURN_PERIODS) = [1.0, 10.0, 50.0]
     aerodynamic_damping: bool = False
+    direction_of_response: Literal["along", "across"] = "along"
+    profile_csv: str | None = None
+    profile_return_period_years: ReturnPeriod = 50.0
+    profile: Literal[PROFILE_MODELS] | None = None  # type: ignore[valid-type]
+    latitude_deg: Annotated[float, Field(ge=-90, le=90, strict=True,
+                                         allow_inf_nan=False)] | None = None
+    air_density_kg_m3: AirDensity = AIR_DENSITY_KG_M3
+
+    @model_validator(mode="after")
+    def _one_profile(self):
+        problem = wind_table_problem(self)
+        if problem:
+            raise ValueError(problem)
+        return self
 
 
 class ProbabilisticTable(_Table):
@@ -223,6 +245,7 @@ class WindLoad:
     spectrum: ForceSpectrum
     aerodynamic_damping_ratio: float  # 0 unless the case adds it
     mean_speed_m_s: float  # at the EN reference height z_s
+    top_mean_speed_m_s: float | None = None  # U_H at the building top
 
 
 @dataclass(frozen=True)
@@ -252,6 +275,9 @@ class Case:
     wind_settings: dict[str, Any] = field(default_factory=dict)
     tables: CaseTable | None = None
     notes: tuple[str, ...] = ()  # warnings about unusual inputs, shown with the results
+    direction_of_response: str = "along"  # which wind load drives the mode
+    across_wind: dict[str, Any] | None = None  # across-wind model and vortex check (wind cases)
+    across_notes: tuple[str, ...] = ()  # the across-wind model's own warnings and cautions
 
     @property
     def shape_factor(self) -> float:
@@ -304,38 +330,41 @@ def read_case(path: str | Path) -> Case:
 def _wind_case(path: Path, table: CaseTable, mode: Mode, common: dict) -> Case:
     w, b = table.wind, table.building
     try:
-        site = Site(terrain=w.terrain, basic_speed_m_s=w.basic_speed_m_s,
-                    orography_factor=w.orography_factor,
-                    probability_shape_parameter=w.probability_shape_parameter,
-                    probability_exponent=w.probability_exponent,
-                    reference_height_m=w.reference_height_m,
-                    reference_mean_speed_m_s=w.reference_mean_speed_m_s,
-                    reference_turbulence_intensity=w.reference_turbulence_intensity)
+        site, site_notes = make_site(w.model_dump(), b.height_m, path.parent)
     except ValueError as exc:
-        raise CaseError(f"{path}: [wind]: {exc}") from None
+        where = f"[wind] profile_csv = {w.profile_csv!r}: " if w.profile_csv else "[wind]: "
+        raise CaseError(f"{path}: {where}{exc}") from None
     try:
         building = Building(**b.model_dump())
     except ValueError as exc:
         raise CaseError(f"{path}: [building]: {exc}") from None
     periods = sorted(set(w.return_periods_years) | {table.target.return_period_years})
     z_s = float(reference_height(site, building))
+    across = w.direction_of_response == "across"
     loads = []
     for period in periods:
+        top = float(site.mean_speed(building.height_m, period))
         try:
-            spectrum = modal_force_spectrum(site, building, period, spectrum=w.spectrum,
-                                            coherence=w.coherence, n_strips=w.n_strips)
+            spectrum = (across_wind_spectrum(building, top, w.air_density_kg_m3, period)
+                        if across else
+                        modal_force_spectrum(site, building, period, spectrum=w.spectrum,
+                                             coherence=w.coherence, n_strips=w.n_strips))
         except ValueError as exc:
             raise CaseError(f"{path}: [wind]/[building]: {exc}") from None
         aero = (float(aerodynamic_damping_ratio(site, building, mode.modal_mass_kg,
                                                 mode.frequency_hz, period))
                 if w.aerodynamic_damping else 0.0)
-        loads.append(WindLoad(period, spectrum, aero, float(site.mean_speed(z_s, period))))
+        loads.append(WindLoad(period, spectrum, aero, float(site.mean_speed(z_s, period)), top))
     _check_damping(path, table, mode, site, building, periods)
+    block, across_notes = across_wind_block(
+        building, mode.frequency_hz, periods, [x.top_mean_speed_m_s for x in loads],
+        lambda t: float(site.mean_speed(building.height_m, t)))
     design = next(x for x in loads if x.return_period_years == table.target.return_period_years)
     return Case(spectrum=design.spectrum, input_files=(path.resolve(),), site=site,
                 building=building, wind_loads=tuple(loads),
                 target_return_period_years=table.target.return_period_years,
-                wind_settings=w.model_dump(), **common)
+                wind_settings=w.model_dump(), direction_of_response=w.direction_of_response,
+                across_wind=block, across_notes=(*site_notes, *across_notes), **common)
 
 
 def _unusual(path: Path, table: CaseTable) -> tuple[str, ...]:

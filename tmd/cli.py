@@ -423,6 +423,13 @@ WIND_ROWS = (
     ("EN Annex B peak acceleration", "peak_acceleration_m_s2", "{:.4f} m/s²"),
     ("spectral rms acceleration", "spectral_sigma_acceleration_m_s2", "{:.4f} m/s²"),
     ("spectral peak acceleration", "spectral_peak_acceleration_m_s2", "{:.4f} m/s²"),
+    ("across-wind spectral peak acceleration", "across_spectral_peak_acceleration_m_s2",
+     "{:.4f} m/s²"),
+    ("top speed U_H", "top_mean_speed_m_s", "{:.2f} m/s"),
+    ("reduced velocity U_H/(f_s b)", "reduced_velocity", "{:.2f}"),
+    ("critical speed v_crit = b f_s/St", "critical_speed_m_s", "{:.2f} m/s"),
+    ("lock-in possible (v_crit <= 1.25 v_m)", "lock_in_possible", "{}"),
+    ("rms lift coefficient C'_L", "rms_lift_coefficient", "{:.4f}"),
 )
 
 
@@ -439,12 +446,17 @@ def wind(case: CaseArg,
     table.add_column("quantity")
     for row in result["return_periods"]:
         table.add_column(f"{row['return_period_years']:g}-year", justify="right")
+    rows = result["return_periods"]
     for label, key, fmt in WIND_ROWS:
-        table.add_row(label, *(fmt.format(row[key]) for row in result["return_periods"]))
+        if all(key in row for row in rows):  # Annex B rows only where EN applies
+            table.add_row(label, *(fmt.format(row[key]) for row in rows))
     out_console.print(table)
-    out_console.print("[dim]Both routes include the aerodynamic damping of EN 1991-1-4 (F.18). "
-                      "Cautions: " + escape(" ".join(result["cautions"])) + "[/]",
-                      highlight=False)
+    if result.get("direction_of_response") == "across":
+        out_console.print("The spectral route is across-wind (no aerodynamic damping).")
+    else:
+        out_console.print("[dim]Both along-wind routes include the aerodynamic damping of "
+                          "EN 1991-1-4 (F.18); the across-wind row has none.[/]")
+    _print_notes(result)
 
 
 @app.command()

@@ -68,6 +68,7 @@ def _return_period_row(case: Case, design: TmdDesign | None, wind_load: WindLoad
     row = {"return_period_years": wind_load.return_period_years,
            "mean_speed_m_s": wind_load.mean_speed_m_s,
            "aerodynamic_damping_ratio": wind_load.aerodynamic_damping_ratio,
+           **_vortex_keys(case, wind_load.return_period_years),
            "bare": asdict(bare_response(load))}
     if design is not None:
         d = evaluate_tmd(load, design.damper, case.target_peak_m_s2
@@ -80,6 +81,43 @@ def _return_period_row(case: Case, design: TmdDesign | None, wind_load: WindLoad
             row["design"]["stroke_within_limit"] = meets_target(d.peak_stroke_m,
                                                                 case.damper.max_stroke_m)
     return row
+
+
+def _vortex_keys(case: Case, period: float) -> dict:
+    """Top speed, reduced velocity, v_crit, lock-in flag and C'_L of one return period."""
+    block = case.across_wind
+    if not block:
+        return {}
+    row = next(r for r in block["by_return_period"] if r["return_period_years"] == period)
+    return {"top_mean_speed_m_s": row["top_mean_speed_m_s"],
+            "reduced_velocity": row["reduced_velocity"],
+            "critical_speed_m_s": row["critical_speed_m_s"],
+            "lock_in_possible": row["lock_in_possible"],
+            "rms_lift_coefficient": block["rms_lift_coefficient"]}
+
+
+def _across_check(case: Case, wind_load: WindLoad) -> dict:
+    """Bare peak acceleration under the across-wind model, for an along-wind case.
+
+    The across-wind sway mode is taken with the case's [mode] properties and
+    its structural damping only (no aerodynamic damping across the wind).
+    """
+    if case.direction_of_response != "along" or wind_load.top_mean_speed_m_s is None:
+        return {}
+    from tmd.wind_setup import across_wind_spectrum
+
+    spectrum = across_wind_spectrum(case.building, wind_load.top_mean_speed_m_s,
+                                    case.site.air_density_kg_m3, wind_load.return_period_years)
+    bare = bare_response(LoadedMode(case.mode, spectrum, case.duration_s, case.shape_factor))
+    return {"across_spectral_peak_acceleration_m_s2": bare.peak_acceleration_m_s2}
+
+
+def _across_block(case: Case) -> dict:
+    """``direction_of_response`` and the ``across_wind`` block of a wind case."""
+    if case.across_wind is None:
+        return {}
+    return {"direction_of_response": case.direction_of_response,
+            "across_wind": case.across_wind}
 
 
 def _header(case: Case) -> dict:
@@ -275,7 +313,7 @@ def _with_notes(build: Callable[[], dict], case: Case | None = None) -> dict:
     Warnings about the case's inputs come first; the computation's own are
     merged by :func:`tmd.notes.collect`, each naming its load.
     """
-    first = case.notes if case is not None else ()
+    first = (*case.notes, *case.across_notes) if case is not None else ()
     with about(load_name(case) if case is not None else DEFAULT_LOAD):
         result, lines = collect(build, first)
     result["warnings"] = lines
@@ -318,6 +356,7 @@ def design_job(case: Case) -> dict:
             result |= robustness_block(case, sizing.design.damper, robust=robust)
         else:
             result |= _bare_sweeps(load, settings)
+        result |= _across_block(case)
         result["recommended"] = _recommended(case, load, result)
         return result
 
@@ -492,6 +531,7 @@ def evaluate_job(case: Case, damper: TunedMassDamper) -> dict:
         }
         if case.wind_loads:
             result["by_return_period"] = by_return_period(case, design)
+        result |= _across_block(case)
         return result | extreme_checks(case, design, result.get("by_return_period"))
 
     return _with_notes(build, case)
@@ -499,35 +539,46 @@ def evaluate_job(case: Case, damper: TunedMassDamper) -> dict:
 
 def wind_job(case: Case) -> dict:
     """Wind at the reference height and the EN 1991-1-4 Annex B check per return period,
-    beside the spectral route's bare-building acceleration at the evaluation height."""
+    beside the spectral route's bare-building acceleration at the evaluation height,
+    and the vortex-shedding check of the across-wind model."""
     from tmd.codecheck import annex_b_check
     from tmd.loads import aerodynamic_damping_ratio, reference_height
-    from tmd.wind import velocity_spectrum
+    from tmd.wind import MAXIMUM_HEIGHT_M, Site, velocity_spectrum
 
     if case.site is None:
         raise CaseError(f"{case.path}: 'tmd wind' needs a case with [wind] and [building]")
     z_s = float(reference_height(case.site, case.building))
+    across = case.direction_of_response == "across"
+    # Annex B is EN's along-wind route on EN's profile: up to 200 m only.
+    code_check = isinstance(case.site, Site) and case.building.height_m <= MAXIMUM_HEIGHT_M
+    notes = [*case.notes, *case.across_notes]
+    if not code_check:
+        notes.append("EN 1991-1-4 Annex B check not given: the building is above 200 m or the "
+                     "wind profile is not EN's")
     rows = []
     for wind_load in case.wind_loads:
         period = wind_load.return_period_years
-        code = annex_b_check(case.site, case.building, case.mode, period,
-                             duration_s=case.duration_s).as_dict()
+        code = (annex_b_check(case.site, case.building, case.mode, period,
+                              duration_s=case.duration_s).as_dict() if code_check else {})
         # EN's route always includes the aerodynamic damping (F.18); so does
-        # the spectral route here, so that the two are compared like for like.
-        aero = float(aerodynamic_damping_ratio(case.site, case.building, case.mode.modal_mass_kg,
-                                               case.mode.frequency_hz, period))
+        # the along-wind spectral route here, so that the two are compared like
+        # for like. F.18 does not apply across the wind.
+        aero = 0.0 if across else float(aerodynamic_damping_ratio(
+            case.site, case.building, case.mode.modal_mass_kg, case.mode.frequency_hz, period))
         mode = case.mode.with_damping(case.mode.damping_ratio + aero)
         spectral = bare_response(LoadedMode(mode, wind_load.spectrum, case.duration_s,
-                                          case.shape_factor))
+                                            case.shape_factor))
         s_u = velocity_spectrum(case.site, z_s, case.mode.frequency_hz, period,
                                 case.wind_settings["spectrum"])
         rows.append({"return_period_years": period, **code,
+                     **_vortex_keys(case, period), **_across_check(case, wind_load),
                      "wind_spectrum_at_mode_m2_s2_per_hz": float(s_u),
                      "aerodynamic_damping_ratio": aero,
                      "spectral_sigma_acceleration_m_s2": spectral.sigma_acceleration_m_s2,
                      "spectral_peak_acceleration_m_s2": spectral.peak_acceleration_m_s2})
     return {"tool_version": __version__, "schema_version": SCHEMA_VERSION,
             "case": {"name": case.name, "path": str(case.path)}, "return_periods": rows,
+            **_across_block(case), "warnings": list(dict.fromkeys(notes)),
             "cautions": list(CAUTIONS)}
 
 

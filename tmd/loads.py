@@ -39,7 +39,6 @@ from tmd.wind.coherence import (
     area_admittance_sq,
     averaged_exponential,
 )
-from tmd.wind.profile import MAXIMUM_HEIGHT_M
 from tmd.wind.turbulence import velocity_spectrum
 
 COHERENCE_MODELS = ("exponential", "exponential-vertical", "admittance")
@@ -61,7 +60,8 @@ class Building:
     Parameters
     ----------
     height_m : float
-        h [m], at most 200 m (EN 1991-1-4 z_max).
+        h [m]; above 200 m (EN 1991-1-4 z_max) the site must be a profile
+        table or a boundary-layer model.
     breadth_m : float
         b [m], the face normal to the wind.
     depth_m : float
@@ -97,11 +97,8 @@ class Building:
     def __post_init__(self):
         for name in ("height_m", "breadth_m", "depth_m", "drag_coefficient"):
             _positive(name, getattr(self, name))
-        if self.height_m > MAXIMUM_HEIGHT_M:
-            raise ValueError(
-                f"height_m = {self.height_m!r} m; the EN 1991-1-4 wind profile is defined up "
-                f"to {MAXIMUM_HEIGHT_M:g} m"
-            )
+        # The 200 m limit of the EN profile is the site's (tmd.wind.Site checks
+        # heights); a profile table or a boundary-layer model reaches higher.
         _positive("mode_shape_exponent", self.mode_shape_exponent)
         for name in ("damper_height_m", "evaluation_height_m"):
             value = getattr(self, name)

@@ -257,24 +257,32 @@ def harris_psd(frequency_hz, sigma_u, mean_speed_10m):
     return _scaled(harris_reduced, "harris", frequency_hz, sigma_u, tau)
 
 
+def _sigma_u(site, z, t):
+    # A profile table or boundary-layer model has sigma_u varying over height;
+    # the EN site's sigma_u is the same at every height (EN 1991-1-4 eq. 4.6).
+    if hasattr(site, "sigma_u_at"):
+        return site.sigma_u_at(z, t)
+    return site.sigma_u(t)
+
+
 def _at_site_eurocode(site, z, t, f):
-    return eurocode_psd(f, site.sigma_u(t), site.mean_speed(z, t), site.length_scale(z))
+    return eurocode_psd(f, _sigma_u(site, z, t), site.mean_speed(z, t), site.length_scale(z))
 
 
 def _at_site_davenport(site, z, t, f):
-    return davenport_psd(f, site.sigma_u(t), site.mean_speed(10.0, t)) + 0.0 * np.asarray(z)
+    return davenport_psd(f, _sigma_u(site, z, t), site.mean_speed(10.0, t)) + 0.0 * np.asarray(z)
 
 
 def _at_site_kaimal(site, z, t, f):
-    return kaimal_psd(f, site.sigma_u(t), site.mean_speed(z, t), z)
+    return kaimal_psd(f, _sigma_u(site, z, t), site.mean_speed(z, t), z)
 
 
 def _at_site_von_karman(site, z, t, f):
-    return von_karman_psd(f, site.sigma_u(t), site.mean_speed(z, t), site.length_scale(z))
+    return von_karman_psd(f, _sigma_u(site, z, t), site.mean_speed(z, t), site.length_scale(z))
 
 
 def _at_site_harris(site, z, t, f):
-    return harris_psd(f, site.sigma_u(t), site.mean_speed(10.0, t)) + 0.0 * np.asarray(z)
+    return harris_psd(f, _sigma_u(site, z, t), site.mean_speed(10.0, t)) + 0.0 * np.asarray(z)
 
 
 # Spectrum names as written in case files -> (site, height, T, f) -> PSD.
