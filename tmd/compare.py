@@ -269,7 +269,22 @@ def _viscous_row(job: _Job) -> dict:
         "damper_constant_n_s_per_m": d.damper_constant_n_s_per_m,
         "damper_count": d.damper_count,
         "deformation_per_modal_displacement": d.deformation_per_modal_displacement,
-        "peak_force_per_damper_n": d.peak_force_per_damper_n}
+        "peak_force_per_damper_n": d.peak_force_per_damper_n} | _capacity_checks(
+            d, job.settings.viscous)
+
+
+def _capacity_checks(d, settings: ViscousSettings) -> dict:
+    """Each device's peak force and deformation against its capacity, one comparison each."""
+    out = {}
+    if settings.force_capacity_n is not None:
+        out |= {"force_capacity_n": settings.force_capacity_n,
+                "force_within_capacity": meets_target(d.peak_force_per_damper_n,
+                                                      settings.force_capacity_n)}
+    if settings.stroke_capacity_m is not None:
+        out |= {"stroke_capacity_m": settings.stroke_capacity_m,
+                "stroke_within_capacity": meets_target(d.peak_damper_deformation_m,
+                                                       settings.stroke_capacity_m)}
+    return out
 
 
 OPTIONS: dict[str, Callable[[_Job], dict]] = {

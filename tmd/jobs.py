@@ -489,6 +489,35 @@ def sweep_job(case: Case, damper: TunedMassDamper) -> dict:
     return _with_notes(build, case)
 
 
+def option_settings_of(case: Case):
+    """The options' settings from the case's [options.*] tables (their defaults otherwise).
+
+    Parameters
+    ----------
+    case : Case
+
+    Returns
+    -------
+    tmd.compare.OptionSettings
+        The viscous installation (default deformation per modal displacement
+        0.03, a storey-drift damper, not the idealised top-to-ground one) and
+        the pendulum stages; the other options keep their dataclass defaults.
+    """
+    from tmd.compare import OptionSettings
+    from tmd.dampers.pendulum import PendulumSettings
+    from tmd.sizing.viscous import ViscousSettings
+
+    opts = case.tables.options
+    if opts is None:
+        from tmd.case import OptionsTable
+
+        opts = OptionsTable()
+    return OptionSettings(
+        pendulum=PendulumSettings(opts.pendulum.stages),
+        viscous=ViscousSettings(opts.viscous.deformation, opts.viscous.damper_count,
+                                opts.viscous.force_capacity_n, opts.viscous.stroke_capacity_m))
+
+
 def compare_job(case: Case) -> dict:
     """Every enabled passive option sized on the case, side by side."""
     from tmd.compare import compare_options
@@ -513,7 +542,7 @@ def compare_job(case: Case) -> dict:
                 load, case.target_peak_m_s2, enabled=None if opts is None else opts.enabled,
                 max_mass_ratio=case.damper.max_mass_ratio,
                 max_stroke_m=case.damper.max_stroke_m, frequency_band=band,
-                tmd_sizing=size_damper(case))
+                tmd_sizing=size_damper(case), settings=option_settings_of(case))
 
     return _with_notes(build, case)
 

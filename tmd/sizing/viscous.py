@@ -56,10 +56,16 @@ class ViscousSettings:
         (reference) level [-].
     damper_count : int
         Number n of identical dampers.
+    force_capacity_n : float, optional
+        Force capacity of one device, checked against its peak force [N].
+    stroke_capacity_m : float, optional
+        Stroke capacity of one device, checked against its peak deformation [m].
     """
 
     deformation_per_modal_displacement: float = 1.0
     damper_count: int = 1
+    force_capacity_n: float | None = None
+    stroke_capacity_m: float | None = None
 
     def __post_init__(self):
         if not self.deformation_per_modal_displacement > 0:
