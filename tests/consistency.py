@@ -90,15 +90,15 @@ def assert_consistent_results(results: dict) -> None:
     for path, block in _blocks(results, "results"):
         _assert_non_negative(block, path)
     _assert_band(results, design, target)
-    robust = results.get("robust_design")
+    robust = results.get("band_design")
     if robust is not None and target is not None:
         if robust.get("mass_kg") is not None:
             _assert_verdict(robust, "peak_acceleration_m_s2", "meets_target", target,
-                            "robust_design")
+                            "band_design")
         _assert_verdict(robust, "peak_acceleration_band_max_m_s2", "meets_target_across_band",
-                        target, "robust_design")
+                        target, "band_design")
         _assert_at_least(robust, "peak_acceleration_band_max_m_s2", "peak_acceleration_m_s2",
-                         "robust_design")
+                         "band_design")
     for i, row in enumerate(results.get("options") or []):
         where = f"options[{i}] ({row.get('option')})"
         if target is not None:

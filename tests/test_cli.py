@@ -101,3 +101,13 @@ def test_inputs_are_never_overwritten(tmp_path):
     result = runner.invoke(app, ["design", str(tmp_path / "c.toml"), "--out", str(tmp_path)])
     assert result.exit_code == 2 and "will not be overwritten" in result.output
     assert (tmp_path / "results.json").read_bytes() == before
+
+
+def test_version_option_prints_the_installed_distribution_version():
+    # The installed package metadata (importlib.metadata, what pip reports) is
+    # the outside reference for the version the CLI prints.
+    from importlib.metadata import version
+
+    result = runner.invoke(app, ["--version"])
+    assert result.exit_code == 0
+    assert result.output.strip() == f"tmd {version('tmd')}"

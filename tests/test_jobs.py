@@ -54,7 +54,7 @@ def test_no_damper_only_at_nominal_sizes_for_the_band():
     assert r["sizing"]["governed_by"] == "band"
     assert "not across the band" in r["sizing"]["message"]
     assert r["design"]["mass_ratio"] == 0.0005
-    robust = r["robust_design"]
+    robust = r["band_design"]
     assert robust["meets_target_across_band"] is False
     assert robust["mass_ratio"] == r["design"]["mass_ratio"]
     # The sweeps run by default (issue 13, defect 19), the heavy parts do not.
@@ -70,7 +70,7 @@ def test_default_robustness_sweeps_a_designed_damper():
     r = _design(0.10)
     assert r["sizing"]["governed_by"] in ("target", "stroke")
     assert r["peak_acceleration_band_max_m_s2"] > r["design"]["peak_acceleration_m_s2"]
-    assert "robust_design" not in r and "probabilistic" not in r
+    assert "band_design" not in r and "probabilistic" not in r
 
 
 def test_one_band_definition_for_design_sweep_and_compare(kestrel_case):

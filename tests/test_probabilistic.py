@@ -14,7 +14,8 @@ from scipy.optimize import brentq
 
 from tmd.dampers.tuned_mass import TunedMassDamper
 from tmd.design import LoadedMode, least_mass, tune
-from tmd.probabilistic import (
+from tmd.robust import assess_structure_factors
+from tmd.robust.probabilistic import (
     Distribution,
     Uncertainty,
     exceedance_probability,
@@ -22,7 +23,6 @@ from tmd.probabilistic import (
     probabilistic_study,
     sampled_exceedance_probability,
 )
-from tmd.robust import assess_structure_factors
 from tmd.spectra import read_force_psd_csv
 from tmd.structure import Mode
 
@@ -118,10 +118,10 @@ def test_library_sampling_matches_scipy_stats_sampling(case, damper):
 
 
 class _DesignCounter:
-    """Counts the designs every engine call of tmd.probabilistic evaluates."""
+    """Counts the designs every engine call of tmd.robust.probabilistic evaluates."""
 
     def __init__(self, monkeypatch):
-        import tmd.probabilistic as module
+        import tmd.robust.probabilistic as module
 
         self.designs, inner = 0, module.assess
 

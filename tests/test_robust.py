@@ -171,7 +171,7 @@ def test_robust_design_meets_target_on_a_finer_grid(case, nominal, study):
     # points across the band, no tolerance: the search aims 1e-6 below the
     # target). It is not oversized: the worst point is within 1e-4 of the
     # target (least mass, as tmd.design.least_mass).
-    r = study["robust_design"]
+    r = study["band_design"]
     assert r["governed_by"] == "target" and r["meets_target_across_band"]
     damper = TunedMassDamper(r["mass_ratio"], r["frequency_ratio"], r["damping_ratio"])
     s = np.linspace(1 - BAND, 1 + BAND, 801)

@@ -6,4 +6,6 @@ re-tuned to the as-built building, and local codes and licensed professional
 practice take precedence.
 """
 
-__version__ = "0.1.0"
+from tmd._version import __version__
+
+__all__ = ["__version__"]

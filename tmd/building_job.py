@@ -15,7 +15,7 @@ import warnings
 
 import numpy as np
 
-from tmd import __version__
+from tmd._version import __version__
 from tmd.building_case import BuildingCase
 from tmd.building_design import (
     BuildingSizing,

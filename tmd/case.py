@@ -26,7 +26,6 @@ from tmd.loads import (
     COHERENCE_MODELS,
     Building,
     aerodynamic_damping_ratio,
-    modal_force_spectrum,
     reference_height,
 )
 from tmd.registry import OBJECTIVES, OPTION_NAMES
@@ -51,10 +50,10 @@ from tmd.spectra import ForceSpectrum, SpectrumFileError, read_force_psd_csv, re
 from tmd.structure import Mode
 from tmd.wind import AIR_DENSITY_KG_M3, SPECTRUM_MODELS, TERRAIN_CATEGORIES, Site
 from tmd.wind.boundary_layer import PROFILE_MODELS
+from tmd.wind_loads import WindLoad, compute_wind_loads
 from tmd.wind_setup import (
     AirDensity,
     across_wind_block,
-    across_wind_spectrum,
     make_site,
     wind_table_problem,
 )
@@ -282,17 +281,6 @@ class DamperSettings:
 
 
 @dataclass(frozen=True)
-class WindLoad:
-    """The computed wind load of one return period."""
-
-    return_period_years: float
-    spectrum: ForceSpectrum
-    aerodynamic_damping_ratio: float  # 0 unless the case adds it
-    mean_speed_m_s: float  # at the EN reference height z_s
-    top_mean_speed_m_s: float | None = None  # U_H at the building top
-
-
-@dataclass(frozen=True)
 class Case:
     """A validated case, ready for the library.
 
@@ -383,29 +371,21 @@ def _wind_case(path: Path, table: CaseTable, mode: Mode, common: dict) -> Case:
     except ValueError as exc:
         raise CaseError(f"{path}: [building]: {exc}") from None
     periods = sorted(set(w.return_periods_years) | {table.target.return_period_years})
-    z_s = float(reference_height(site, building))
-    across = w.direction_of_response == "across"
-    loads = []
-    for period in periods:
-        top = float(site.mean_speed(building.height_m, period))
-        try:
-            spectrum = (across_wind_spectrum(building, top, w.air_density_kg_m3, period)
-                        if across else
-                        modal_force_spectrum(site, building, period, spectrum=w.spectrum,
-                                             coherence=w.coherence, n_strips=w.n_strips))
-        except ValueError as exc:
-            raise CaseError(f"{path}: [wind]/[building]: {exc}") from None
-        aero = (float(aerodynamic_damping_ratio(site, building, mode.modal_mass_kg,
-                                                mode.frequency_hz, period))
-                if w.aerodynamic_damping else 0.0)
-        loads.append(WindLoad(period, spectrum, aero, float(site.mean_speed(z_s, period)), top))
+    try:
+        loads = compute_wind_loads(site, building, mode, periods, spectrum=w.spectrum,
+                                   coherence=w.coherence, n_strips=w.n_strips,
+                                   aerodynamic_damping=w.aerodynamic_damping,
+                                   direction_of_response=w.direction_of_response,
+                                   air_density_kg_m3=w.air_density_kg_m3)
+    except ValueError as exc:
+        raise CaseError(f"{path}: [wind]/[building]: {exc}") from None
     _check_damping(path, table, mode, site, building, periods)
     block, across_notes = across_wind_block(
         building, mode.frequency_hz, periods, [x.top_mean_speed_m_s for x in loads],
         lambda t: float(site.mean_speed(building.height_m, t)))
     design = next(x for x in loads if x.return_period_years == table.target.return_period_years)
     return Case(spectrum=design.spectrum, input_files=(path.resolve(),), site=site,
-                building=building, wind_loads=tuple(loads),
+                building=building, wind_loads=loads,
                 target_return_period_years=table.target.return_period_years,
                 wind_settings=w.model_dump(), direction_of_response=w.direction_of_response,
                 across_wind=block, across_notes=(*site_notes, *across_notes), **common)

@@ -21,6 +21,7 @@ from rich.markup import escape
 from rich.table import Table
 
 from tmd import terminal
+from tmd._version import __version__
 from tmd.building_case import is_building_case, load_building_case
 from tmd.building_job import building_design_job, building_tables
 from tmd.case import CaseError, read_case
@@ -42,6 +43,20 @@ app = typer.Typer(add_completion=False, no_args_is_help=True,
                   help="Size passive dampers for a wind-excited building mode.")
 out_console = terminal.console()
 err_console = terminal.console(stderr=True)
+
+
+def _show_version(value: bool) -> None:
+    if value:
+        out_console.print(f"tmd {__version__}", highlight=False)
+        raise typer.Exit()
+
+
+@app.callback()
+def _main(version: Annotated[bool, typer.Option(
+        "--version", callback=_show_version, is_eager=True,
+        help="Print the version of tmd and exit.")] = False) -> None:
+    """Size passive dampers for a wind-excited building mode."""
+
 
 CaseArg = Annotated[Path, typer.Argument(help="Case file (TOML).", show_default=False)]
 
@@ -337,7 +352,7 @@ def _print_robustness(result: dict) -> None:
     table.add_row("nominal optimum", f"{d['mass_kg'] / 1000:,.1f} t",
                   _accel(d["peak_acceleration_m_s2"]),
                   _accel(result["peak_acceleration_band_max_m_s2"]))
-    r = result.get("robust_design")
+    r = result.get("band_design")
     if r:
         label = ("robust (meets target across band)" if r["meets_target_across_band"]
                  else "robust (best across band; target NOT met)")

@@ -12,14 +12,15 @@ from collections.abc import Callable
 from dataclasses import asdict
 from pathlib import Path
 
-from tmd import __version__
-from tmd.case import Case, CaseError, RobustnessTable, WindLoad
+from tmd._version import __version__
+from tmd.case import Case, CaseError, RobustnessTable
 from tmd.dampers.tuned_mass import TunedMassDamper
 from tmd.defaults import FREQUENCY_BAND
 from tmd.design import LoadedMode, Sizing, TmdDesign, bare_response, evaluate_tmd, least_mass, tune
 from tmd.notes import DEFAULT_LOAD, about, collect
 from tmd.schema import CAUTIONS, SCHEMA_VERSION, design_block
 from tmd.verdict import meets_target
+from tmd.wind_loads import WindLoad
 
 
 def loaded_mode_of(case: Case, wind_load: WindLoad | None = None) -> LoadedMode:
@@ -447,11 +448,11 @@ def robustness_block(case: Case, damper: TunedMassDamper, *, robust=None) -> dic
     Returns
     -------
     dict
-        The sweeps, band maximum and summary, plus ``robust_design`` and
+        The sweeps, band maximum and summary, plus ``band_design`` and
         ``probabilistic`` when asked for.
     """
-    from tmd.probabilistic import Distribution, Uncertainty
     from tmd.robust import robustness_study
+    from tmd.robust.probabilistic import Distribution, Uncertainty
 
     r = robustness_settings(case)
     uncertainty = None

@@ -187,7 +187,7 @@ def test_retuning_range_spans_the_band(full_report):
     k = m (2 pi f)^2 (common practice: spring of a TMD of given mass and frequency).
     """
     _, results, files = full_report
-    band = results["robust_design"]["frequency_band"]
+    band = results["band_design"]["frequency_band"]
     rows = list(csv.reader(io.StringIO(files["tables/retuning.csv"].decode("utf-8"))))
     f_lo, f_mid, f_hi = (float(v) for v in rows[1][1:4])
     k_lo, k_mid, k_hi = (float(v) for v in rows[2][1:4])

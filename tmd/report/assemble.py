@@ -4,7 +4,7 @@
 "tables/<name>.csv": ...}`` (bytes), for :func:`tmd.outputs.write_all` to write
 beside results.json. Sections appear for whatever the results hold: the wind
 (``by_return_period``, ``wind``), robustness (``sweep``, ``sweep_bare``,
-``robust_design``, ``probabilistic``) and options (``options``) parts are
+``band_design``, ``probabilistic``) and options (``options``) parts are
 rendered when present and skipped when absent.
 """
 
@@ -158,7 +158,7 @@ class _Report:
     def files(self) -> dict[str, bytes]:
         sections = [self.job_section(), self.inputs_section(), self.bare_section(),
                     self.damper_section(), self.comfort_section()]
-        if self.results.get("sweep") or self.results.get("robust_design"):
+        if self.results.get("sweep") or self.results.get("band_design"):
             sections.append(self.robustness_section())
         if self.results.get("options"):
             sections.append(self.options_section())
@@ -324,7 +324,7 @@ class _Report:
         return "These results hold no damper design."
 
     def _band(self) -> tuple[float, str]:
-        robust = self.results.get("robust_design") or {}
+        robust = self.results.get("band_design") or {}
         if robust.get("frequency_band") is not None:
             return float(robust["frequency_band"]), "the robust design's frequency band"
         stated = self.results["case"].get("inputs", {}).get("robustness", {}).get(
@@ -402,7 +402,7 @@ class _Report:
             blocks.append(self._table(Table("band", "What the nominal design keeps across the "
                                             "frequency band", [Cell("quantity"), Cell("value"),
                                                                Cell("unit")], rows)))
-        robust = r.get("robust_design")
+        robust = r.get("band_design")
         if robust and design:
             blocks.append(self._table(self._robust_table(design, robust)))
             extra = robust["mass_kg"] / design["mass_kg"] - 1.0
@@ -426,7 +426,7 @@ class _Report:
         for key in keys:
             label, unit = label_and_unit(key, labels=DAMPER_LABELS)
             nominal = Cell(design[key], f"design.{key}") if key in design else Cell("")
-            rows.append([Cell(label), nominal, Cell(robust[key], f"robust_design.{key}"),
+            rows.append([Cell(label), nominal, Cell(robust[key], f"band_design.{key}"),
                          Cell(unit)])
         header = [Cell("quantity"), Cell("nominal design"), Cell("robust design"), Cell("unit")]
         return Table("robust_design", "Robust design beside the nominal one", header, rows)
@@ -437,7 +437,7 @@ class _Report:
         nominal = series.sweep_from_results(r["sweep"])
         bare = series.sweep_from_results(r["sweep_bare"])
         band = self._band()[0]
-        robust = r.get("robust_design")
+        robust = r.get("band_design")
         robust_curve = (series.detuned_sweep(self.load, robust, nominal.structure_frequency_factor)
                         if robust else None)
         bare_on_grid = np.interp(nominal.structure_frequency_factor,

@@ -20,7 +20,7 @@ per job). Their public names are re-exported here.
 
 Every sweep is one batched engine call (:func:`tmd.performance.assess` with
 arrays of structure frequency or absorber parameters). The probabilistic
-counterpart (random s and zeta_s) is :mod:`tmd.probabilistic`.
+counterpart (random s and zeta_s) is :mod:`tmd.robust.probabilistic`.
 
 References
 ----------

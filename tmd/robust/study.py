@@ -6,6 +6,7 @@ from tmd.dampers.tuned_mass import TunedMassDamper
 from tmd.defaults import FREQUENCY_BAND, MAX_MASS_RATIO
 from tmd.design import LoadedMode
 from tmd.robust.minimax import RobustSizing, robust_least_mass
+from tmd.robust.probabilistic import probabilistic_study
 from tmd.robust.sweeps import (
     DASHPOT_RANGE,
     SPRING_RANGE,
@@ -52,11 +53,11 @@ def robustness_study(loaded: LoadedMode, nominal: TunedMassDamper, target_peak_m
         zeta_s(s) [-], vectorised; default the mode's constant damping. See
         :class:`AerodynamicDamping`; a table can be passed as
         ``functools.partial(numpy.interp, xp=s_values, fp=zeta_values)``.
-    probabilistic : tmd.probabilistic.Uncertainty, optional
+    probabilistic : tmd.robust.probabilistic.Uncertainty, optional
         Random structure frequency (and damping): adds ``probabilistic``.
     robust_sizing : RobustSizing, optional
         A robust design sized already (e.g. the design itself, when it was
-        sized for the band): reported as ``robust_design`` instead of a new
+        sized for the band): reported as ``band_design`` instead of a new
         search.
 
     Returns
@@ -65,9 +66,9 @@ def robustness_study(loaded: LoadedMode, nominal: TunedMassDamper, target_peak_m
         ``frequency_band``, ``sweep``, ``sweep_bare``, ``sweep_damper_frequency``,
         ``sweep_damper_damping``, ``peak_acceleration_band_max_m_s2`` and
         ``worst_structure_frequency_factor`` (of the nominal design),
-        ``robust_design`` (when asked; see
+        ``band_design`` (when asked; see
         :func:`robust_design_block`), ``probabilistic`` (when asked; see
-        :func:`tmd.probabilistic.probabilistic_study`) and ``summary``:
+        :func:`tmd.robust.probabilistic.probabilistic_study`) and ``summary``:
         ``nominal_band_loss`` (band maximum / peak at s = 1, minus 1 [-]),
         ``nominal_band_max_over_target`` [-], ``robust_extra_mass_kg`` and
         ``robust_extra_mass_fraction`` (robust minus nominal mass, and that
@@ -86,15 +87,13 @@ def robustness_study(loaded: LoadedMode, nominal: TunedMassDamper, target_peak_m
     at_nominal = float(loaded.assess(nominal.absorbers(loaded.mode)).peak_acceleration_m_s2)
     robust = robust_sizing
     if robust is not None:
-        result["robust_design"] = robust_design_block(robust)
+        result["band_design"] = robust_design_block(robust)
     elif robust_design:
         robust = robust_least_mass(loaded, target_peak_m_s2, frequency_band,
                                    max_mass_ratio=max_mass_ratio, max_stroke_m=max_stroke_m,
                                    structure_damping_ratio=structure_damping_ratio)
-        result["robust_design"] = robust_design_block(robust)
+        result["band_design"] = robust_design_block(robust)
     if probabilistic is not None:
-        from tmd.probabilistic import probabilistic_study  # avoids an import cycle
-
         result["probabilistic"] = probabilistic_study(
             loaded, nominal, target_peak_m_s2, probabilistic,
             robust=robust.design.damper if robust and robust.design else None,
@@ -158,7 +157,7 @@ def design_sweeps(loaded: LoadedMode, damper: TunedMassDamper, *,
 
 
 def robust_design_block(sizing: RobustSizing) -> dict:
-    """The ``robust_design`` block of results.json.
+    """The ``band_design`` block of results.json.
 
     The fields of the ``design`` block (the design evaluated on the nominal
     structure, s = 1; all None when no damper is needed) plus

@@ -65,7 +65,7 @@ from tmd.dampers.tuned_mass import TunedMassDamper
 from tmd.defaults import MAX_MASS_RATIO
 from tmd.design import LoadedMode, TmdDesign, evaluate_tmd, tune
 from tmd.performance import assess
-from tmd.robust import StructureDamping, structure_damping_ratios
+from tmd.robust.sweeps import StructureDamping, structure_damping_ratios
 from tmd.schema import design_block
 
 NORMAL_FLOOR = 0.02      # smallest factor a normal variable is allowed to take
