@@ -19,7 +19,7 @@ def _result(design, band_max=None, robust=None):
     if band_max is not None:
         r["peak_acceleration_band_max_m_s2"] = band_max
     if robust is not None:
-        r["robust_design"] = robust
+        r["band_design"] = robust
     return r
 
 
@@ -29,7 +29,7 @@ def test_band_robust_design_when_the_nominal_fails_across_the_band():
     robust = _design(230.6e3, 0.0577, peak_acceleration_band_max_m_s2=0.05999,
                      meets_target_across_band=True)
     rec = recommendation(_result(_design(49.8e3, 0.06), 0.0862, robust), frequency_band=0.15)
-    assert rec["design_key"] == "robust_design" and rec["mass_kg"] == 230.6e3
+    assert rec["design_key"] == "band_design" and rec["mass_kg"] == 230.6e3
     assert rec["meets_target_across_band"] is True and rec["rule"] == RULE
     assert "0.0862" in rec["why"] and "230.6 t" in rec["why"]
 
@@ -46,7 +46,7 @@ def test_robust_row_that_misses_the_band_is_flagged_not_hidden():
     robust = _design(1e6, 0.055, peak_acceleration_band_max_m_s2=0.07,
                      meets_target_across_band=False)
     rec = recommendation(_result(_design(50e3, 0.06), 0.09, robust), frequency_band=0.15)
-    assert rec["design_key"] == "robust_design" and rec["meets_target_across_band"] is False
+    assert rec["design_key"] == "band_design" and rec["meets_target_across_band"] is False
     assert "still above" in rec["why"]
 
 

@@ -133,7 +133,7 @@ def _summary(result: dict) -> Table:
     table.add_column("bare building", justify="right")
     rec = result.get("recommended") or {}
     key = rec.get("design_key") or "design"
-    label = {"robust_design": "recommended: band-robust",
+    label = {"band_design": "recommended: band-robust",
              "design": "recommended: nominal"}.get(key) if rec else "with damper"
     table.add_column(label, justify="right")
     bare, design = result["bare"], result.get(key)
@@ -210,7 +210,7 @@ def _print_recommendation(result: dict) -> None:
     rec = result.get("recommended")
     if not rec:
         return
-    which = {"robust_design": "the band-robust design", "design": "the nominal design",
+    which = {"band_design": "the band-robust design", "design": "the nominal design",
              None: "no damper"}[rec["design_key"]]
     out_console.print(f"[bold]Recommended: {which}.[/] " + escape(rec["why"]), highlight=False)
     out_console.print("[dim]Rule: " + escape(rec["rule"]) + ".[/]", highlight=False)

@@ -2,7 +2,7 @@
 
 A design job can give three competing TMDs: the nominal least-mass design
 (``design``), the least mass meeting the target across the frequency band
-(``robust_design``) and the least mass for an acceptable exceedance
+(``band_design``) and the least mass for an acceptable exceedance
 probability (``probabilistic.least_mass_design``). The engineer needs one
 line saying which to specify, by a rule stated in the output:
 
@@ -42,7 +42,7 @@ def recommendation(result: dict, *, bare_band_max_m_s2: float | None = None,
     result : dict
         The design job's results so far (``target``, ``bare``, ``design``,
         and, with ``[robustness]``, ``peak_acceleration_band_max_m_s2``,
-        ``robust_design``).
+        ``band_design``).
     bare_band_max_m_s2 : float, optional
         The bare building's worst peak across the band [m/s^2], when no
         damper was sized and the band check ran.
@@ -87,7 +87,7 @@ def recommendation(result: dict, *, bare_band_max_m_s2: float | None = None,
                "[robustness] for the band check): re-tune it to the measured building")
     else:
         nominal_band = result["peak_acceleration_band_max_m_s2"]
-        robust = result.get("robust_design")
+        robust = result.get("band_design")
         nominal_met = meets_target(nominal_band, target)
         if nominal_met or not robust:
             chosen, key = design | {"peak_acceleration_band_max_m_s2": nominal_band,
@@ -99,7 +99,7 @@ def recommendation(result: dict, *, bare_band_max_m_s2: float | None = None,
                    f"(worst {nominal_band:.4g} m/s^2) and no band-robust design was sized "
                    "([robustness] robust_design = false)")
         else:
-            chosen, key = robust, "robust_design"
+            chosen, key = robust, "band_design"
             why = (f"the nominal design's worst peak across +/-{100 * frequency_band:g}% is "
                    f"{nominal_band:.4g} m/s^2, above the target {target:.4g} m/s^2; the "
                    f"band-robust design ({robust['mass_kg'] / 1000:,.1f} t against "

@@ -45,9 +45,9 @@ def test_recommendation_is_the_band_robust_design_and_leads_the_report(case_repo
     rec = results["recommended"]
     # Issue 11: nominal 49.8 t exceeds the target across the band; the band-robust design
     # meets it there, so the rule picks it; its verdict is its own.
-    assert rec["design_key"] == "robust_design"
-    assert rec["mass_kg"] == results["robust_design"]["mass_kg"]
-    assert rec["meets_target_across_band"] == results["robust_design"][
+    assert rec["design_key"] == "band_design"
+    assert rec["mass_kg"] == results["band_design"]["mass_kg"]
+    assert rec["meets_target_across_band"] == results["band_design"][
         "meets_target_across_band"] is True
     assert results["design"] is not None  # the nominal design stays under its own key
     html = files["report.html"].decode("utf-8")

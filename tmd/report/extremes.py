@@ -82,7 +82,7 @@ def recommendation_blocks(block: dict, keep) -> list:
     list
         A callout naming the choice and a key/value table of its numbers.
     """
-    which = {"robust_design": "the band-robust design (results key robust_design)",
+    which = {"band_design": "the band-robust design (results key band_design)",
              "design": "the nominal design (results key design)",
              None: "no damper"}[block.get("design_key")]
     # Without a damper the damper section states the outcome in its own callout.
