@@ -384,6 +384,7 @@ def _recommended(case: Case, load: LoadedMode, result: dict) -> dict:
                     for row in by_return_period(case, design)]
             block["by_return_period"] = rows
         block |= extreme_checks(case, design, rows, subject="the recommended design")
+        block["peak_estimates"] = peak_estimates(load, design)
     return block
 
 

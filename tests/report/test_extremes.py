@@ -61,3 +61,19 @@ def test_recommendation_is_the_band_robust_design_and_leads_the_report(case_repo
     for row in rec["by_return_period"]:
         d = row["design"]
         assert d["stroke_within_limit"] == (d["peak_stroke_m"] <= limit)
+
+
+def test_recommended_design_shows_its_peak_by_each_estimate(case_report):
+    _, results, files = _kestrel(case_report)
+    rec = results["recommended"]
+    est = rec["peak_estimates"]
+    # Davenport's estimate is the tool's default peak (peak_method "davenport"),
+    # so it is the recommended design's own peak; Vanmarcke's (1975) two-sided
+    # first-passage mean sits beside it (tmd.peak, tested against Rice's law).
+    assert results["target"]["peak_method"] == "davenport"
+    assert est["davenport_peak_acceleration_m_s2"] == pytest.approx(
+        rec["peak_acceleration_m_s2"], rel=1e-9)
+    assert est["vanmarcke_peak_acceleration_m_s2"] > 0
+    html = files["report.html"].decode("utf-8")
+    keyed = {c["attrs"].get("data-key") for c in cells_of(html)}
+    assert "recommended.peak_estimates.vanmarcke_peak_acceleration_m_s2" in keyed

@@ -289,6 +289,12 @@ class _Report:
                 blocks.append(self._table(key_value_table(
                     "peak_estimates", f"Peak acceleration of this design by each estimate "
                     f"(the verdict uses {method})", r["peak_estimates"], "peak_estimates")))
+            chosen = r.get("recommended", {})
+            if "peak_estimates" in chosen:
+                blocks.append(self._table(key_value_table(
+                    "recommended_peak_estimates", "Peak acceleration of the recommended "
+                    f"design ({chosen.get('design_key')}) by each estimate",
+                    chosen["peak_estimates"], "recommended.peak_estimates")))
             band, source = self._band()
             blocks.append(self._table(retuning_table(design, band, source)))
             entries = r.get("by_return_period") or []
