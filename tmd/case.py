@@ -34,6 +34,7 @@ from tmd.rules import (
     MAX_RETURN_PERIODS,
     PLAUSIBLE,
     Band,
+    Duration,
     InputError,
     ModeFrequency,
     Orography,
@@ -85,8 +86,7 @@ class LoadTable(_Table):
 
 class TargetTable(_Table):
     peak_acceleration_m_s2: _capped(10.0)
-    duration_s: Annotated[float, Field(ge=1, le=86_400, strict=True,
-                                       allow_inf_nan=False)] = defaults.DURATION_S
+    duration_s: Duration = defaults.DURATION_S
     return_period_years: ReturnPeriod | None = None
     peak_method: Literal["davenport", "vanmarcke", "simulated"] = "davenport"
     peak_fractile: Annotated[float, Field(gt=0, lt=1, strict=True, allow_inf_nan=False)] | None \

@@ -31,6 +31,7 @@ from __future__ import annotations
 
 from collections.abc import Callable
 from dataclasses import dataclass, field
+from typing import Literal
 
 import numpy as np
 
@@ -42,6 +43,7 @@ from tmd.design import LoadedMode, Sizing, TmdDesign, least_mass
 from tmd.performance import assess, effective_damping_ratio
 from tmd.registry import OPTION_NAMES
 from tmd.robust import band_maximum, peak_acceleration_band_max, structure_damping_ratios
+from tmd.rules import MAX_OPTION_NAMES, Band, Positive, Ratio, require, unique_list
 from tmd.sizing.bank import BankSettings, size_tmd_bank
 from tmd.sizing.liquid_column import size_liquid_column, velocity_proportional_fixed_point
 from tmd.sizing.pendulum import pendulum_design
@@ -78,6 +80,9 @@ class _Job:
             self._tmd = least_mass(self.loaded, self.target, max_mass_ratio=self.max_mass_ratio,
                                    max_stroke_m=self.max_stroke_m)
         return self._tmd
+
+
+_ENABLED = unique_list(Literal[OPTION_NAMES], MAX_OPTION_NAMES)  # type: ignore[valid-type]
 
 
 def compare_options(loaded: LoadedMode, target_peak_m_s2: float, *, enabled=None,
@@ -127,10 +132,16 @@ def compare_options(loaded: LoadedMode, target_peak_m_s2: float, *, enabled=None
     tmd.design.DesignError
         If an optimiser fails (the bank's convex solver included).
     """
-    names = list(OPTIONS) if enabled is None else list(enabled)
-    unknown = [n for n in names if n not in OPTIONS]
-    if unknown:
-        raise ValueError(f"unknown option(s) {unknown}; known: {list(OPTIONS)}")
+    # The case file's rules and messages (tmd.rules): a list (not a string, which would
+    # split into letters) of at most MAX_OPTION_NAMES known, distinct names.
+    if isinstance(enabled, tuple):
+        enabled = list(enabled)
+    names = list(OPTIONS) if enabled is None else require("enabled", enabled, _ENABLED)
+    require("peak_acceleration_m_s2", target_peak_m_s2, Positive)
+    require("max_mass_ratio", max_mass_ratio, Ratio)
+    if max_stroke_m is not None:
+        require("max_stroke_m", max_stroke_m, Positive)
+    require("frequency_band", frequency_band, Band)
     job = _Job(loaded, target_peak_m_s2, max_mass_ratio, max_stroke_m, frequency_band,
                settings or OptionSettings(), tmd_sizing)
     rows = [{"option": name} | OPTIONS[name](job) for name in names]

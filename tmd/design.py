@@ -28,6 +28,7 @@ from tmd.defaults import DURATION_S
 from tmd.errors import BracketError, NumericalFailure
 from tmd.performance import assess, effective_damping_ratio
 from tmd.registry import OBJECTIVES, STATISTICS
+from tmd.rules import Duration, InputError, Positive, Ratio, require
 from tmd.schema import BareResponse, TmdDesign
 from tmd.spectra import ForceSpectrum
 from tmd.structure import Mode
@@ -103,6 +104,17 @@ class LoadedMode:
         aero, zeta = self.aerodynamic_damping_ratio, self.mode.damping_ratio
         # s = 1 is the nominal mode itself, to the last bit.
         return np.where(s == 1.0, zeta, zeta - aero + aero / s)
+
+    def __post_init__(self):
+        # The case file's rules and messages (tmd.rules).
+        if not isinstance(self.mode, Mode):
+            raise InputError(f"mode = {self.mode!r}: must be a tmd.structure.Mode")
+        if not isinstance(self.spectrum, ForceSpectrum):
+            raise InputError(f"spectrum = {self.spectrum!r}: must be a force spectrum "
+                             "(callable with f_min_hz, f_max_hz and breakpoints_hz)")
+        object.__setattr__(self, "duration_s", require("duration_s", self.duration_s, Duration))
+        object.__setattr__(self, "shape_factor",
+                           require("shape_factor", self.shape_factor, Positive))
 
     def assess(self, absorbers, **kw):
         m = self.mode
@@ -237,6 +249,16 @@ class _TuningProblem:
         return -self.stroke_grad / self.max_stroke
 
 
+def _check_sizing_arguments(*, target_peak_m_s2=None, max_mass_ratio=None, max_stroke_m=None):
+    """The case file's rules for the sizing arguments that are given (tmd.rules)."""
+    if target_peak_m_s2 is not None:
+        require("peak_acceleration_m_s2", target_peak_m_s2, Positive)
+    if max_mass_ratio is not None:
+        require("max_mass_ratio", max_mass_ratio, Ratio)
+    if max_stroke_m is not None:
+        require("max_stroke_m", max_stroke_m, Positive)
+
+
 def tune(loaded: LoadedMode, mass_ratio: float, *, objective: str = "acceleration",
          statistic: str = "peak", max_stroke_m: float | None = None,
          stroke_loads: tuple[LoadedMode, ...] = ()) -> Tuning:
@@ -266,6 +288,10 @@ def tune(loaded: LoadedMode, mass_ratio: float, *, objective: str = "acceleratio
     DesignError
         If SLSQP fails from every start.
     """
+    require("mass_ratio", mass_ratio, Ratio)
+    _check_sizing_arguments(max_stroke_m=max_stroke_m)
+    if objective not in OBJECTIVES:
+        raise InputError(f"objective = {objective!r}: must be one of {OBJECTIVES}")
     problem = _TuningProblem(loaded, mass_ratio, objective, statistic, max_stroke_m,
                              stroke_loads if max_stroke_m is not None else ())
     ratio0, zeta0 = warburton_white_force_tuning(mass_ratio)
@@ -322,6 +348,8 @@ def least_mass(loaded: LoadedMode, target_peak_m_s2: float, *, max_mass_ratio: f
     Sizing
         At a "target"-governed answer |peak / target - 1| < 1e-4.
     """
+    _check_sizing_arguments(target_peak_m_s2=target_peak_m_s2, max_mass_ratio=max_mass_ratio,
+                            max_stroke_m=max_stroke_m)
     bare = bare_response(loaded)
     if meets_target(bare.peak_acceleration_m_s2, target_peak_m_s2):
         return Sizing(None, True, "bare", (

@@ -143,6 +143,11 @@ MAX_OPTION_NAMES = 20
 Positive = Annotated[float, Field(gt=0, strict=True, allow_inf_nan=False)]
 NonNegative = Annotated[float, Field(ge=0, strict=True, allow_inf_nan=False)]
 Ratio = Annotated[float, Field(gt=0, lt=1, strict=True, allow_inf_nan=False)]
+# Averaging duration T of peak factors: 1 s to a day.
+Duration = Annotated[float, Field(ge=1, le=86_400, strict=True, allow_inf_nan=False)]
+# A damper's mass ratio in the library (0: no damper); case files ask for > 0.
+MassRatio = Annotated[float, Field(ge=0, lt=1, strict=True, allow_inf_nan=False)]
+SweepRange = Annotated[float, Field(gt=0, lt=0.6, strict=True, allow_inf_nan=False)]
 # f_d / f_s of a given (proposed or as-built) damper; tuning searches 0.5 to 1.5.
 FrequencyRatio = Annotated[float, Field(gt=0, le=5, strict=True, allow_inf_nan=False)]
 Band = Annotated[float, Field(ge=0, lt=0.5, strict=True, allow_inf_nan=False)]
@@ -202,13 +207,13 @@ def describe_error(err: dict) -> str:
     ctx = err.get("ctx") or {}
     kind = err["type"]
     if kind == "greater_than":
-        return f"must be > {ctx['gt']}"
+        return f"must be > {_num(ctx['gt'])}"
     if kind == "greater_than_equal":
-        return f"must be >= {ctx['ge']}"
+        return f"must be >= {_num(ctx['ge'])}"
     if kind == "less_than":
-        return f"must be < {ctx['lt']}"
+        return f"must be < {_num(ctx['lt'])}"
     if kind == "less_than_equal":
-        return f"must be <= {ctx['le']}"
+        return f"must be <= {_num(ctx['le'])}"
     if kind == "literal_error":
         return f"must be one of {ctx.get('expected')}"
     if kind == "finite_number":
@@ -230,6 +235,10 @@ def describe_error(err: dict) -> str:
     if kind in ("model_type", "dataclass_type", "dict_type"):
         return "must be a table"
     return err["msg"].replace("Value error, ", "")
+
+
+def _num(value: Any) -> str:
+    return f"{value:g}" if isinstance(value, int | float) else str(value)
 
 
 def shown(value: Any) -> str:

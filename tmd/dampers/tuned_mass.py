@@ -19,6 +19,7 @@ import math
 from dataclasses import dataclass
 
 from tmd.dampers.absorber import Absorbers, single_tmd
+from tmd.rules import FrequencyRatio, MassRatio, Ratio, require
 from tmd.structure import Mode
 
 
@@ -41,12 +42,10 @@ class TunedMassDamper:
     damping_ratio: float
 
     def __post_init__(self):
-        if not self.mass_ratio >= 0:
-            raise ValueError(f"mass_ratio must be >= 0, got {self.mass_ratio!r}")
-        if not self.frequency_ratio > 0:
-            raise ValueError(f"frequency_ratio must be > 0, got {self.frequency_ratio!r}")
-        if not 0 < self.damping_ratio < 1:
-            raise ValueError(f"damping_ratio must lie in (0, 1), got {self.damping_ratio!r}")
+        # The case file's rules and messages (tmd.rules); InputError is a ValueError.
+        require("mass_ratio", self.mass_ratio, MassRatio)
+        require("frequency_ratio", self.frequency_ratio, FrequencyRatio)
+        require("damping_ratio", self.damping_ratio, Ratio)
 
     def mass_kg(self, mode: Mode) -> float:
         """Damper mass m_d = mu M* [kg]."""

@@ -18,6 +18,7 @@ from tmd.robust.sweeps import (
     sweep_damper_frequency,
     sweep_structure_frequency,
 )
+from tmd.rules import Band, SweepRange, require
 from tmd.schema import design_block
 
 # --- one call per job -------------------------------------------------------
@@ -79,6 +80,7 @@ def robustness_study(loaded: LoadedMode, nominal: TunedMassDamper, target_peak_m
     The extra mass is measured against the ``nominal`` damper given, so with
     a fixed-mass nominal design it can be negative.
     """
+    _check_band(frequency_band, sweep_range)
     result = design_sweeps(loaded, nominal, frequency_band=frequency_band,
                            sweep_range=sweep_range,
                            structure_damping_ratio=structure_damping_ratio)
@@ -140,6 +142,7 @@ def design_sweeps(loaded: LoadedMode, damper: TunedMassDamper, *,
         keys), ``peak_acceleration_band_max_m_s2`` and the s where it occurs,
         ``worst_structure_frequency_factor`` [-].
     """
+    _check_band(frequency_band, sweep_range)
     worst = peak_acceleration_band_max(loaded, damper, frequency_band,
                                        structure_damping_ratio=structure_damping_ratio)
     return {
@@ -176,3 +179,9 @@ def robust_design_block(sizing: RobustSizing) -> dict:
         "governed_by": sizing.governed_by,
         "message": sizing.message,
     }
+
+
+def _check_band(frequency_band, sweep_range) -> None:
+    """The case file's rules for the band and the sweep range (tmd.rules)."""
+    require("frequency_band", frequency_band, Band)
+    require("sweep_range", sweep_range, SweepRange)

@@ -22,6 +22,7 @@ from tmd.dampers.tuned_mass import TunedMassDamper
 from tmd.defaults import DASHPOT_RANGE, SPRING_RANGE, SWEEP_RANGE
 from tmd.design import LoadedMode
 from tmd.performance import assess, effective_damping_ratio
+from tmd.rules import Band, require
 
 SWEEP_POINTS = 41           # s step 0.01 over +/-20%
 DAMPER_SWEEP_POINTS = 21
@@ -247,6 +248,7 @@ def band_maximum(peak_of_factors: Callable[[np.ndarray], np.ndarray], frequency_
     (bounded) refines it between its grid neighbours. The maximum may lie at
     a band edge or inside the band.
     """
+    require("frequency_band", frequency_band, Band)
     s = factor_grid(frequency_band, points)
     peak = np.asarray(peak_of_factors(s), float)
     i = int(np.argmax(peak))
