@@ -387,7 +387,9 @@ def csv_bytes(table: Table) -> bytes:
 
 _CSV_UNITS = {printed: suffix[1:] for suffix, printed in UNIT_SUFFIXES}
 _CSV_SYMBOLS = {"·": "-", "±": "+/-", "²": "^2", "³": "^3", "×": "x", "—": "-", "–": "-",
-                "≤": "<=", "≥": ">=", "µ": "u", "…": "...", "°": " deg", "≈": "~", "ζ": "zeta"}
+                "≤": "<=", "≥": ">=", "µ": "u", "…": "...", "°": " deg", "≈": "~",
+                "ζ": "zeta", "μ": "mu", "ω": "omega", "φ": "phi", "δ": "delta", "σ": "sigma",
+                "β": "beta", "ν": "nu", "ρ": "rho", "Δ": "Delta"}
 
 
 def _ascii(text: str) -> str:
