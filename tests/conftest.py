@@ -32,4 +32,4 @@ def kestrel_case():
     """The Kestrel Point demo case, loaded once (its wind model takes seconds)."""
     from tmd.case import read_case
 
-    return read_case("cases/kestrel_point.toml")
+    return read_case(Path(__file__).resolve().parent.parent / "cases" / "kestrel_point.toml")

@@ -2,6 +2,7 @@
 
 import json
 import warnings
+from pathlib import Path
 
 import pytest
 
@@ -10,7 +11,7 @@ from tmd.case import read_case
 from tmd.compare import OPTIONS, compare_options
 from tmd.jobs import design_job, loaded_mode_of
 
-CASE_FILE = "cases/harbourline_residences.toml"
+CASE_FILE = Path(__file__).resolve().parent.parent / "cases" / "harbourline_residences.toml"
 COMMON = ("option", "mass_kg", "mass_ratio", "peak_acceleration_m_s2", "peak_stroke_m",
           "peak_damper_force_n", "effective_damping_ratio", "peak_acceleration_band_max_m_s2",
           "meets_target", "dimensions")

@@ -1,5 +1,7 @@
 """TMD tuning and least-mass sizing against published optima and their own definitions."""
 
+from pathlib import Path
+
 import numpy as np
 import pytest
 
@@ -29,13 +31,17 @@ def test_white_force_displacement_optimum_matches_warburton(mu):
     # Warburton (1982), Table 1, undamped primary under white force on the
     # primary, minimum displacement variance:
     #   f = sqrt(1 + mu/2)/(1 + mu), zeta^2 = mu (1 + 3 mu/4) / (4 (1 + mu)(1 + mu/2)).
-    # The issue asks for 1e-3 in f and zeta; the optimiser reaches ~1e-8.
+    # The optimiser starts away from the answer (10% off in f, a factor 2 off
+    # in zeta, on either side), so an idle optimiser fails. It reaches the
+    # closed form to 1.4e-7 relative at worst (measured over these starts; the
+    # rms is flat to second order at the optimum): tolerance 1e-6.
     case = LoadedMode(Mode(1.0, 1.0, 0.0), WhiteSpectrum(1.0))
-    t = tune(case, mu, objective="displacement", statistic="rms")
     f_ref = np.sqrt(1 + mu / 2) / (1 + mu)
     z_ref = np.sqrt(mu * (1 + 0.75 * mu) / (4 * (1 + mu) * (1 + mu / 2)))
-    assert t.frequency_ratio == pytest.approx(f_ref, abs=1e-3)
-    assert t.damping_ratio == pytest.approx(z_ref, abs=1e-3)
+    for start in ((0.9 * f_ref, 2.0 * z_ref), (1.1 * f_ref, 0.5 * z_ref)):
+        t = tune(case, mu, objective="displacement", statistic="rms", start=start)
+        assert t.frequency_ratio == pytest.approx(f_ref, rel=1e-6)
+        assert t.damping_ratio == pytest.approx(z_ref, rel=1e-6)
     assert warburton_white_force_tuning(mu) == pytest.approx((f_ref, z_ref), rel=1e-15)
 
 
@@ -135,7 +141,8 @@ def harbourline():
     from tmd.case import read_case
     from tmd.jobs import loaded_mode_of
 
-    return loaded_mode_of(read_case("cases/harbourline_residences.toml"))
+    demo = Path(__file__).resolve().parent.parent / "cases" / "harbourline_residences.toml"
+    return loaded_mode_of(read_case(demo))
 
 
 def test_least_mass_verdicts_agree_at_the_answer(harbourline):

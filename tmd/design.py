@@ -261,7 +261,8 @@ def _check_sizing_arguments(*, target_peak_m_s2=None, max_mass_ratio=None, max_s
 
 def tune(loaded: LoadedMode, mass_ratio: float, *, objective: str = "acceleration",
          statistic: str = "peak", max_stroke_m: float | None = None,
-         stroke_loads: tuple[LoadedMode, ...] = ()) -> Tuning:
+         stroke_loads: tuple[LoadedMode, ...] = (),
+         start: tuple[float, float] | None = None) -> Tuning:
     """Best frequency and damping ratio of a TMD of given mass ratio.
 
     Parameters
@@ -278,6 +279,9 @@ def tune(loaded: LoadedMode, mass_ratio: float, *, objective: str = "acceleratio
     stroke_loads : tuple of LoadedMode
         Further loads (e.g. a longer return period's wind) under which the
         peak stroke must also stay within ``max_stroke_m``.
+    start : (float, float), optional
+        (f_d / f_s [-], zeta_d [-]) to start the optimiser from instead of
+        Warburton's (1982) white-force optimum.
 
     Returns
     -------
@@ -294,7 +298,8 @@ def tune(loaded: LoadedMode, mass_ratio: float, *, objective: str = "acceleratio
         raise InputError(f"objective = {objective!r}: must be one of {OBJECTIVES}")
     problem = _TuningProblem(loaded, mass_ratio, objective, statistic, max_stroke_m,
                              stroke_loads if max_stroke_m is not None else ())
-    ratio0, zeta0 = warburton_white_force_tuning(mass_ratio)
+    ratio0, zeta0 = (warburton_white_force_tuning(mass_ratio) if start is None
+                     else (float(start[0]), float(start[1])))
     zeta0 = float(np.clip(zeta0, *DAMPING_RATIO_BOUNDS))
     bounds = [FREQUENCY_RATIO_BOUNDS, tuple(np.log(DAMPING_RATIO_BOUNDS))]
     constraints = []

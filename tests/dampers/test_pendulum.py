@@ -1,6 +1,7 @@
 """Pendulum TMD geometry against the simple-pendulum relation."""
 
 import math
+from pathlib import Path
 
 import pytest
 
@@ -39,7 +40,9 @@ def test_swing_angle():
 
 
 def test_design_geometry_on_the_demo_case():
-    load = loaded_mode_of(read_case("cases/harbourline_residences.toml"))
+    # Path from this file, not the working directory.
+    demo = Path(__file__).resolve().parents[2] / "cases" / "harbourline_residences.toml"
+    load = loaded_mode_of(read_case(demo))
     tmd = least_mass(load, 0.1, max_mass_ratio=0.05, max_stroke_m=1.0).design
     p = pendulum_design(tmd, PendulumSettings(stages=3))
     assert p.length_m == pytest.approx(9.80665 / (2 * math.pi * tmd.frequency_hz) ** 2,
