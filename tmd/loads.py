@@ -42,6 +42,9 @@ from tmd.wind.coherence import (
 from tmd.wind.turbulence import velocity_spectrum
 
 COHERENCE_MODELS = ("exponential", "exponential-vertical", "admittance")
+# Frequencies x strip pairs per block of the strip sums (temporaries of 16 times
+# that many doubles, ~8 MB), so that memory stays bounded at any n_strips.
+PAIR_BLOCK_ELEMENTS = 65536
 DEFAULT_FREQUENCY_HZ = np.geomspace(1e-4, 10.0, 400)
 _GAUSS_NODES, _GAUSS_WEIGHTS = np.polynomial.legendre.leggauss(16)
 _GAUSS_NODES = 0.5 * (_GAUSS_NODES + 1.0)  # on [0, 1]
@@ -305,7 +308,8 @@ def generalized_force_psd(frequency_hz, strip_height_m, strip_length_m, mode_val
     admittance_speed : float
         U [m/s] in chi^2 for "admittance".
     chunk_size : int
-        Frequencies per block (memory ~ 32 chunk_size n^2 doubles).
+        Frequencies per block; strip pairs are taken in blocks of
+        PAIR_BLOCK_ELEMENTS / chunk_size, so memory does not grow with n^2.
 
     Returns
     -------
@@ -322,7 +326,8 @@ def generalized_force_psd(frequency_hz, strip_height_m, strip_length_m, mode_val
     (:func:`strip_self_coherence`). Averaging over the strips, not sampling
     at midpoints, keeps the sum right where a strip is longer than the
     correlation length (high frequencies). Equal strip lengths are assumed
-    by the exact vertical average.
+    by the exact vertical average. C is symmetric, so S_F = sum_i w_i^2 C_ii +
+    2 sum_{i<j} w_i w_j C_ij: each pair is formed once.
     """
     f = np.asarray(frequency_hz, dtype=float)
     z, dz = np.asarray(strip_height_m, float), np.asarray(strip_length_m, float)
@@ -335,40 +340,65 @@ def generalized_force_psd(frequency_hz, strip_height_m, strip_length_m, mode_val
     if coherence not in COHERENCE_MODELS:
         raise ValueError(f"coherence = {coherence!r}; allowed: {', '.join(COHERENCE_MODELS)}")
     lateral = decay_lateral * breadth_m if coherence == "exponential" else 0.0
-    inverse_speed = 2.0 / (speed[:, None] + speed[None, :])
-    vertical = decay_vertical * np.abs(z[:, None] - z[None, :]) * inverse_speed
+    n = z.size
+    # The coherence matrix is symmetric: only pairs i < j are formed (each counted twice),
+    # in blocks of pairs so that memory stays bounded whatever n_strips is.
+    i, j = np.triu_indices(n, k=2 if lateral else 1)
+    inverse_speed = 2.0 / (speed[i] + speed[j])
+    vertical = decay_vertical * np.abs(z[i] - z[j]) * inverse_speed
     # Half-width of the vertical separations between two strips, as a decay.
-    spread = decay_vertical * 0.5 * (dz[:, None] + dz[None, :]) * inverse_speed
-    off_diagonal = ~np.eye(z.size, dtype=bool)
+    spread = decay_vertical * 0.5 * (dz[i] + dz[j]) * inverse_speed
+    near_i, near_j = np.arange(n - 1), np.arange(1, n)
+    near_inverse = 2.0 / (speed[near_i] + speed[near_j])
+    near_vertical = decay_vertical * np.abs(z[near_i] - z[near_j]) * near_inverse
+    near_spread = decay_vertical * 0.5 * (dz[near_i] + dz[near_j]) * near_inverse
+    s_nodes = np.concatenate([-_GAUSS_NODES, _GAUSS_NODES])
+    s_weights = np.tile(_GAUSS_WEIGHTS * (1.0 - _GAUSS_NODES), 2)
     out = np.empty(f.size)
     for start in range(0, f.size, chunk_size):
-        fc, wc = f[start:start + chunk_size, None, None], w[start:start + chunk_size]
+        fc, wc = f[start:start + chunk_size, None], w[start:start + chunk_size]
+        pairs = np.zeros(fc.shape[0])
+        # A block size independent of this chunk's length: the same sums, bit for bit,
+        # for a frequency whatever table it is computed in.
+        block = max(1, PAIR_BLOCK_ELEMENTS // chunk_size)
+        for lo in range(0, i.size, block):
+            part = slice(lo, lo + block)
+            product = wc[:, i[part]] * wc[:, j[part]]
+            if lateral:
+                # Separations between points of two strips spread triangularly about
+                # the midpoint distance; two nodes at +-h/sqrt(6) match that
+                # distribution's moments to third order.
+                shift = fc * spread[part] / math.sqrt(6.0)
+                c = _lateral_mean_coherence_pair(fc * vertical[part] - shift,
+                                                 fc * vertical[part] + shift,
+                                                 fc * lateral * inverse_speed[part])
+            else:
+                c = pair_mean_exponential(fc * vertical[part], 0.5 * fc * spread[part])
+            pairs += np.einsum("kp,kp->k", product, c)
         if lateral:
-            # Separations between points of two strips spread triangularly about
-            # the midpoint distance; two nodes at +-h/sqrt(6) match that
-            # distribution's moments to third order.
-            q = fc * lateral * inverse_speed
-            shift = fc * spread / math.sqrt(6.0)
-            c = 0.5 * (lateral_mean_coherence(fc * vertical - shift, q)
-                       + lateral_mean_coherence(fc * vertical + shift, q))
             # Neighbours' separations reach zero, where the two nodes fall short
             # once a strip outgrows the correlation length: full Gauss rule there.
-            i, j = np.arange(z.size - 1), np.arange(1, z.size)
-            s_nodes = np.concatenate([-_GAUSS_NODES, _GAUSS_NODES])
-            s_weights = np.tile(_GAUSS_WEIGHTS * (1.0 - _GAUSS_NODES), 2)
-            a_nodes = fc * (vertical[i, j] + spread[i, j] * s_nodes[:, None])[None]
-            near = np.einsum("s,ksp->kp", s_weights,
-                             lateral_mean_coherence(a_nodes, q[:, i, j][:, None, :]))
-            c[:, i, j] = near
-            c[:, j, i] = near
-        else:
-            c = pair_mean_exponential(fc * vertical, 0.5 * fc * spread)
-        diagonal = strip_self_coherence(fc[:, :, 0] * decay_vertical * dz / speed,
-                                        fc[:, :, 0] * lateral / speed)
-        c = np.where(off_diagonal, c, 0.0)
-        out[start:start + chunk_size] = (np.einsum("ki,kij,kj->k", wc, c, wc)
-                                         + np.sum(wc**2 * diagonal, axis=1))
+            a_nodes = fc[:, None, :] * (near_vertical + near_spread * s_nodes[:, None])[None]
+            q = (fc * lateral * near_inverse)[:, None, :]
+            near = np.einsum("s,ksp->kp", s_weights, lateral_mean_coherence(a_nodes, q))
+            pairs += np.einsum("kp,kp->k", wc[:, near_i] * wc[:, near_j], near)
+        diagonal = strip_self_coherence(fc * decay_vertical * dz / speed,
+                                        fc * lateral / speed)
+        out[start:start + chunk_size] = 2.0 * pairs + np.sum(wc**2 * diagonal, axis=1)
     return out
+
+
+def _lateral_mean_coherence_pair(first_decay, second_decay, lateral_decay):
+    """(L(A1, Q) + L(A2, Q)) / 2 of :func:`lateral_mean_coherence`, sharing its nodes in Q."""
+    a1 = np.asarray(first_decay, dtype=float)[..., None]
+    a2 = np.asarray(second_decay, dtype=float)[..., None]
+    q = np.maximum(np.asarray(lateral_decay, dtype=float), 1e-300)[..., None]
+    c = -np.expm1(-q)
+    qt = -np.log1p(-_GAUSS_NODES * c)
+    weight = _GAUSS_WEIGHTS * (1.0 - qt / q) * (c / q)
+    qt2 = qt * qt
+    pair = np.exp(qt - np.sqrt(a1 * a1 + qt2)) + np.exp(qt - np.sqrt(a2 * a2 + qt2))
+    return np.sum(weight * pair, axis=-1)
 
 
 def modal_force_spectrum(site, building, return_period_years=50.0, *, spectrum="eurocode",
@@ -422,6 +452,77 @@ def modal_force_spectrum(site, building, return_period_years=50.0, *, spectrum="
     source = (f"along-wind modal force: {spectrum} spectrum, {coherence} coherence, "
               f"T = {return_period_years:g} yr, {n_strips} strips")
     return TabulatedSpectrum(f, s_f, source=source)
+
+
+def modal_force_spectra(site, building, return_periods_years, *, reference_period_years=None,
+                        spectrum="eurocode", coherence="exponential", n_strips=40,
+                        decay_vertical=DECAY_VERTICAL, decay_lateral=DECAY_LATERAL):
+    """Modal force spectra of several return periods from one strip computation [N^2/Hz].
+
+    Parameters
+    ----------
+    site : tmd.wind.Site
+    building : Building
+    return_periods_years : sequence of float
+        T [years] of each spectrum wanted.
+    reference_period_years : float, optional
+        T_ref [years] whose table is computed; its table is exactly the one
+        of :func:`modal_force_spectrum` (default: the first period).
+    spectrum, coherence, n_strips, decay_vertical, decay_lateral
+        As for :func:`modal_force_spectrum`.
+
+    Returns
+    -------
+    list of TabulatedSpectrum
+        One per return period, in the given order.
+
+    Notes
+    -----
+    Every mean speed and sigma_u scales with the return period by the same
+    factor c = c_prob(T) / c_prob(T_ref) (EN 1991-1-4 eq. 4.2, :mod:`tmd.wind.profile`);
+    the length scales do not. Every turbulence spectrum here has the form
+    S_u(f) = sigma_u^2 R(f L / U) / f and every coherence depends on f dz / U,
+    so the generalised force is self-similar:
+
+        S_F(f; T) = c^3 S_F(f / c; T_ref)
+
+    exactly (w_i ~ U_i sqrt(S_u,i) gives c^2 c, the argument f / c). So the
+    strip sums are done once, on the default log grid extended by whole steps,
+    and the table of T is that grid times c with values times c^3: exact at
+    every node. What is not the same as computing T on its own is the table's
+    grid: its nodes are shifted by the factor c, so the range is
+    [1e-4, 10] Hz widened by less than one table step (2.9%) at each end, and
+    the log-log interpolant between nodes differs from the one on the
+    unshifted grid by its interpolation error. The reference period's table
+    is exactly (bit for bit) the one :func:`modal_force_spectrum` gives.
+    """
+    periods = [float(t) for t in return_periods_years]
+    reference = periods[0] if reference_period_years is None else float(reference_period_years)
+    ratio = {t: float(site.speed_factor(t) / site.speed_factor(reference)) for t in periods}
+    f = DEFAULT_FREQUENCY_HZ
+    log_step = math.log(f[1] / f[0])
+    below = max(0, math.ceil(math.log(max(ratio.values())) / log_step - 1e-9))
+    above = max(0, math.ceil(-math.log(min(ratio.values())) / log_step - 1e-9))
+    extended = np.concatenate([f[0] * np.exp(log_step * np.arange(-below, 0)), f,
+                               f[-1] * np.exp(log_step * np.arange(1, above + 1))])
+    table = modal_force_spectrum(site, building, reference, spectrum=spectrum,
+                                 coherence=coherence, n_strips=n_strips,
+                                 decay_vertical=decay_vertical, decay_lateral=decay_lateral,
+                                 frequency_hz=extended)
+    out = []
+    for t in periods:
+        c = ratio[t]
+        nodes = c * extended
+        # Keep one node at or beyond each end of the default range.
+        first = int(np.searchsorted(nodes, f[0] * (1 + 1e-12), side="right")) - 1
+        last = int(np.searchsorted(nodes, f[-1] * (1 - 1e-12), side="left"))
+        keep = slice(max(first, 0), min(last, nodes.size - 1) + 1)
+        source = (f"along-wind modal force: {spectrum} spectrum, {coherence} coherence, "
+                  f"T = {t:g} yr, {n_strips} strips"
+                  + ("" if t == reference else f" (scaled from T = {reference:g} yr)"))
+        out.append(TabulatedSpectrum(nodes[keep], c**3 * table.psd_n2_per_hz[keep],
+                                     source=source))
+    return out
 
 
 def reference_wind_spectrum(site, building, return_period_years=50.0, *, spectrum="eurocode",

@@ -11,6 +11,7 @@ from tmd.loads import (
     aerodynamic_damping_ratio,
     generalized_force_psd,
     height_strips,
+    modal_force_spectra,
     modal_force_spectrum,
     reference_wind_spectrum,
 )
@@ -178,3 +179,28 @@ def test_building_above_200_m_needs_a_profile_beyond_en():
 def test_bad_model_names():
     with pytest.raises(ValueError, match="coherence = 'full'"):
         modal_force_spectrum(SITE, TOWER, coherence="full", frequency_hz=[0.1, 0.2])
+
+
+@pytest.mark.parametrize("model", ["eurocode", "davenport", "kaimal", "von-karman", "harris"])
+@pytest.mark.parametrize("coherence", ["exponential", "exponential-vertical", "admittance"])
+def test_return_periods_reuse_one_spectrum_shape_exactly(model, coherence):
+    # EN 1991-1-4 eq. 4.2 scales the basic speed by c_prob, so every mean
+    # speed and sigma_u (eq. 4.7) scale together while the length scales do
+    # not; every spectrum here is sigma_u^2 R(f L / U) / f (EN Annex B eq. B.2
+    # and its peers) and every coherence depends on f dz / U, so
+    # S_F(c f; T) = c^3 S_F(f; T_ref). Reference: the strip sums computed
+    # directly at T on the scaled nodes; agreement to rounding (1e-12).
+    periods = [50.0, 1.0, 10.0, 1000.0]
+    tables = modal_force_spectra(SITE, TOWER, periods, spectrum=model, coherence=coherence,
+                                 n_strips=8)
+    for period, table in zip(periods, tables, strict=True):
+        direct = modal_force_spectrum(SITE, TOWER, period, spectrum=model, coherence=coherence,
+                                      n_strips=8, frequency_hz=table.frequency_hz)
+        np.testing.assert_allclose(table.psd_n2_per_hz, direct.psd_n2_per_hz, rtol=1e-12)
+        # The range shifts with c but still covers the default 1e-4..10 Hz.
+        assert table.f_min_hz <= 1e-4 and table.f_max_hz >= 10.0
+    # The reference period's table is the direct one, bit for bit.
+    first = modal_force_spectrum(SITE, TOWER, 50.0, spectrum=model, coherence=coherence,
+                                 n_strips=8)
+    np.testing.assert_array_equal(tables[0].frequency_hz, first.frequency_hz)
+    np.testing.assert_array_equal(tables[0].psd_n2_per_hz, first.psd_n2_per_hz)
