@@ -537,20 +537,27 @@ def _tensor_interpolant(excess, u_s, nodes, lo, hi):
 def _spline_crossings(u_s, curves):
     """P[curve(u) > 0] over standard normal u and the crossing count, per row of ``curves``.
 
-    Each row is interpolated by a cubic spline (``scipy.interpolate.CubicSpline``)
-    whose real roots on the grid's span are the crossings; the sign of each
-    segment between them is read at its midpoint (so a tangency does not flip
-    it), and beyond the grid the end points' signs hold.
+    Each row is interpolated by a cubic spline (``scipy.interpolate.CubicSpline``,
+    one object for all rows) whose real roots on the grid's span are the
+    crossings; the sign of each segment between them is read at its midpoint
+    (so a tangency does not flip it), and beyond the grid the end points'
+    signs hold.
     """
+    spline = CubicSpline(u_s, curves.T)
+    roots = [np.unique(r) for r in np.atleast_1d(spline.roots(extrapolate=False))]
+    inner = [np.concatenate([[u_s[0]], r, [u_s[-1]]]) for r in roots]
+    middles = [0.5 * (e[:-1] + e[1:]) for e in inner]
+    # Every row at every row's midpoints: one evaluation, then each row takes its own.
+    points = np.concatenate(middles)
+    values = spline(points)
     probability = np.empty(curves.shape[0])
     count = np.empty(curves.shape[0], dtype=int)
-    for k, row in enumerate(curves):
-        spline = CubicSpline(u_s, row)
-        roots = np.unique(spline.roots(extrapolate=False))
-        inner = np.concatenate([[u_s[0]], roots, [u_s[-1]]])
-        over = spline(0.5 * (inner[:-1] + inner[1:])) > 0
+    start = 0
+    for k, (r, mid) in enumerate(zip(roots, middles, strict=True)):
+        over = values[start:start + mid.size, k] > 0
+        start += mid.size
         changes = np.flatnonzero(over[1:] != over[:-1])
-        edges = np.concatenate([[-np.inf], roots[changes], [np.inf]])
+        edges = np.concatenate([[-np.inf], r[changes], [np.inf]])
         signs = np.concatenate([[over[0]], over[changes + 1]])
         probability[k] = np.sum(np.diff(ndtr(edges))[signs])
         count[k] = changes.size
