@@ -112,3 +112,20 @@ def test_a_written_folder_can_be_written_again(tmp_path, monkeypatch):
     result = runner.invoke(app, ["design", str(DEMO), "--out", str(out)])
     assert result.exit_code == 1 and "stop after the checks" in result.output
     assert (out / "results.json").read_text() == "{}"  # untouched by a failed run
+
+
+def test_help_and_bad_input_do_not_load_the_numerical_stack():
+    # Issue "Speed" item 5: --help and a bad-input exit must not pay for
+    # scipy, the jobs or the report (they cost most of the start-up time;
+    # measured in bench/bench_jobs.py, never timed here). A fresh interpreter
+    # imports the CLI and reads a missing case file.
+    import subprocess
+    import sys
+
+    code = ("import sys\nimport tmd.cli\nfrom tmd.case import CaseError, read_case\n"
+            "try:\n    read_case('no_such_case.toml')\nexcept CaseError:\n    pass\n"
+            "print(sorted(m for m in ('scipy', 'tmd.jobs', 'tmd.design', 'matplotlib', 'cvxpy')"
+            " if m in sys.modules))")
+    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                          check=True)
+    assert done.stdout.strip() == "[]"

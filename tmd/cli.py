@@ -12,6 +12,7 @@ import contextvars
 import functools
 import json
 import os
+import sys
 import warnings
 from pathlib import Path
 from typing import Annotated
@@ -27,17 +28,28 @@ from tmd.building_job import building_design_job, building_tables
 from tmd.case import CaseError, read_case
 from tmd.constants import STANDARD_GRAVITY
 from tmd.dampers.tuned_mass import TunedMassDamper
-from tmd.jobs import (
-    compare_job,
-    design_job,
-    evaluate_job,
-    retune_job,
-    sweep_job,
-    wind_job,
-)
 from tmd.outputs import OutputFolder, to_json
 from tmd.rules import FrequencyRatio, InputError, Ratio, require
 from tmd.schema import CAUTIONS
+
+# The jobs (and with them scipy and the damper stack) are imported on first use,
+# so that --help and a bad-input exit stay fast. They are attributes of this
+# module (PEP 562), so tests may replace them; commands look them up through _job.
+_JOBS = ("compare_job", "design_job", "evaluate_job", "retune_job", "sweep_job", "wind_job")
+
+
+def __getattr__(name):
+    if name in _JOBS:
+        import tmd.jobs
+
+        return getattr(tmd.jobs, name)
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
+
+
+def _job(name):
+    """The job function ``name``: this module's attribute, imported lazily."""
+    return getattr(sys.modules[__name__], name)
+
 
 app = typer.Typer(add_completion=False, no_args_is_help=True,
                   help="Size passive dampers for a wind-excited building mode.")
@@ -251,7 +263,7 @@ def design(case: CaseArg,
         _design_building(case, out)
         return
     c, target = _case_and_output(case, out)
-    result = design_job(c)
+    result = _job("design_job")(c)
     out_console.print(_summary(result))
     if (table := _return_period_table(result)) is not None:
         out_console.print(table)
@@ -397,7 +409,7 @@ def evaluate(case: CaseArg,
     c = read_case(case)
     damper = _design_from(c, None, (mass_ratio, frequency_ratio, damping_ratio),
                           (damper_mass_kg, damper_stiffness_n_per_m, damper_damping_n_s_per_m))
-    result = evaluate_job(c, damper)
+    result = _job("evaluate_job")(c, damper)
     if json_output:
         typer.echo(to_json({"design": result["design"]}), nl=False)
         return
@@ -453,7 +465,7 @@ WIND_ROWS = (
 def wind(case: CaseArg,
          json_output: Annotated[bool, typer.Option("--json", help="Print JSON only.")] = False):
     """Wind at the reference height and the EN 1991-1-4 Annex B check, per return period."""
-    result = wind_job(read_case(case))
+    result = _job("wind_job")(read_case(case))
     if json_output:
         typer.echo(to_json(result), nl=False)
         return
@@ -482,7 +494,7 @@ def compare(case: CaseArg,
             ] = None):
     """Size every enabled passive option on the case and compare them."""
     c, target = _case_and_output(case, out)
-    result = compare_job(c)
+    result = _job("compare_job")(c)
     out_console.print(terminal.options_table(result))
     _print_notes(result)
     _write(c, result, target)
@@ -504,7 +516,7 @@ def sweep(case: CaseArg,
     c = read_case(case)
     damper = _design_from(c, design_from, (mass_ratio, frequency_ratio, damping_ratio),
                           (damper_mass_kg, damper_stiffness_n_per_m, damper_damping_n_s_per_m))
-    result = sweep_job(c, damper)
+    result = _job("sweep_job")(c, damper)
     if json_output:
         typer.echo(to_json(result), nl=False)
         return
@@ -596,8 +608,9 @@ def retune(case: CaseArg,
         installed = _built_damper(d["mass_kg"], d["stiffness_n_per_m"], d["damping_n_s_per_m"])
     except KeyError as exc:
         raise CaseError(f"{design_from}: the design block lacks {exc}") from None
-    result = retune_job(c, installed, measured_frequency_hz, damping_ratio=measured_damping_ratio,
-                        modal_mass_kg=measured_modal_mass_kg)
+    result = _job("retune_job")(c, installed, measured_frequency_hz,
+                                damping_ratio=measured_damping_ratio,
+                                modal_mass_kg=measured_modal_mass_kg)
     if json_output:
         typer.echo(to_json(result), nl=False)
         return

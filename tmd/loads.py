@@ -30,7 +30,6 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.integrate import quad
 
 from tmd.spectra import TabulatedSpectrum
 from tmd.wind.coherence import (
@@ -178,6 +177,8 @@ class Building:
             h, z_d = self.height_m, self.damper_height_m
             return h ** (2 * zeta + 1) / ((2 * zeta + 1) * z_d ** (2 * zeta))
         inside = [z for z in self.mode_shape_heights_m if 0 < z < self.height_m]
+        from scipy.integrate import quad  # deferred: reading a case must not load scipy
+
         value, _ = quad(lambda z: float(self.mode_shape(z)) ** 2, 0.0, self.height_m,
                         points=inside or None, limit=200)
         return value

@@ -33,14 +33,13 @@ from __future__ import annotations
 import math
 
 import numpy as np
-from scipy.special import gamma
 
 DAVENPORT_LENGTH_M = 1200.0  # from memory: Davenport (1961), x = 1200 f / U10
 HARRIS_LENGTH_M = 1800.0  # from memory: Harris (1971), x = 1800 f / U10
 VON_KARMAN_CONSTANT = 70.8  # from memory: the usual rounding in the longitudinal form
 
 # integral of (1 + y^2)^(-5/6) dy over 0..inf = sqrt(pi) Gamma(1/3) / (2 Gamma(5/6))
-_INT_56 = math.sqrt(math.pi) * gamma(1.0 / 3.0) / (2.0 * gamma(5.0 / 6.0))
+_INT_56 = math.sqrt(math.pi) * math.gamma(1.0 / 3.0) / (2.0 * math.gamma(5.0 / 6.0))
 
 
 def eurocode_reduced(reduced_frequency):
