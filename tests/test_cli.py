@@ -8,6 +8,7 @@ import pytest
 from typer.testing import CliRunner
 
 from tests.consistency import assert_consistent_results
+from tmd import cli
 from tmd.cli import app
 
 CASES = Path(__file__).resolve().parents[1] / "cases"
@@ -16,9 +17,13 @@ runner = CliRunner()
 
 
 @pytest.fixture(scope="module")
-def design_run(tmp_path_factory):
+def design_run(tmp_path_factory, design_results):
+    # The CLI's own path (parsing, output folder, report, summary) on the
+    # session's shared design run of the demo (tests/conftest.py).
     out = tmp_path_factory.mktemp("design")
-    result = runner.invoke(app, ["design", str(DEMO), "--out", str(out)])
+    with pytest.MonkeyPatch.context() as patch:
+        patch.setattr(cli, "design_job", lambda case: design_results(case.path))
+        result = runner.invoke(app, ["design", str(DEMO), "--out", str(out)])
     return result, out
 
 

@@ -9,7 +9,6 @@ import pytest
 from tests.consistency import assert_consistent_results
 from tests.report.synthetic import DEMO_CASE, full_results
 from tmd.case import read_case
-from tmd.jobs import design_job
 from tmd.outputs import to_json
 from tmd.performance import UpperEdgeWarning
 from tmd.report import render_report
@@ -24,20 +23,20 @@ def as_written(results: dict) -> dict:
 
 
 @pytest.fixture(scope="session", params=CASES, ids=[c.stem for c in CASES])
-def case_report(request):
+def case_report(request, design_results):
     case = read_case(request.param)
-    results = design_job(case)
+    results = design_results(request.param)
     assert_consistent_results(as_written(results))
     return case, as_written(results), render_report(case, results, dpi=TEST_DPI)
 
 
 @pytest.fixture(scope="session")
-def full_report():
+def full_report(design_results):
     case = read_case(DEMO_CASE)
     with warnings.catch_warnings():
         # the demo spectrum's upper-edge note is already in results["warnings"]
         warnings.simplefilter("ignore", UpperEdgeWarning)
-        results = full_results(case)
+        results = full_results(case, design_results(DEMO_CASE))
     return case, as_written(results), render_report(case, results, dpi=TEST_DPI)
 
 

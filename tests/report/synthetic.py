@@ -66,9 +66,9 @@ def fixed_damper(design: dict, mass=1.0, frequency=None, damping=None):
     return absorbers
 
 
-def full_results(case) -> dict:
-    """design_job's results plus every optional section (documented keys)."""
-    results = design_job(case)
+def full_results(case, results=None) -> dict:
+    """design_job's results (given, or computed) plus every optional section (documented keys)."""
+    results = design_job(case) if results is None else results
     load = loaded_mode_of(case)
     design = results["design"]
     damper = TunedMassDamper(design["mass_ratio"], design["frequency_ratio"],
