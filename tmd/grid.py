@@ -25,6 +25,7 @@ evaluates all of them in one vectorised call.
 
 from __future__ import annotations
 
+import math
 from functools import lru_cache
 
 import numpy as np
@@ -191,69 +192,92 @@ def pole_grid(centre_hz, half_width_hz, f_min_hz=0.0, f_max_hz=np.inf, *, breakp
         cuts = np.unique(cuts[(cuts > f_min_hz) & (cuts < f_max_hz)])
         if cuts.size:
             return _split_grid(c, h, edges, f_min_hz, f_max_hz, cuts, nodes_per_pole)
-    f_pole, w_pole = _pole_panels(c, h, edges, nodes_per_pole)
-    f_tail, w_tail = _tail_panels(edges[..., 0], edges[..., -1], f_min_hz, f_max_hz,
-                                  nodes_per_tail_panel)
-    return (np.concatenate([f_pole, f_tail], axis=-1),
-            np.concatenate([w_pole, w_tail], axis=-1))
+    n_pole, n_tail = nodes_per_pole, nodes_per_tail_panel
+    finite = math.isfinite(f_max_hz)
+    poles = c.shape[-1] * n_pole
+    logs = (2 * TAIL_PANELS + finite) * n_tail
+    total = poles + logs + n_tail * (1 if finite else 2)
+    frequency = np.empty(c.shape[:-1] + (total,))
+    weight = np.empty_like(frequency)
+    _pole_panels(c, h, edges, n_pole, frequency[..., :poles], weight[..., :poles])
+    _tail_panels(edges[..., 0], edges[..., -1], f_min_hz, f_max_hz, n_tail,
+                 frequency[..., poles:], weight[..., poles:])
+    return frequency, weight
 
 
-def _pole_panels(centre, half_width, edges, n):
-    """Gauss-Legendre in u on each pole's panel with f = centre + half_width sinh(u)."""
+def _panels(out, panels, n):
+    """``out`` (..., panels * n) seen as (..., panels, n), a view."""
+    return out.reshape(out.shape[:-1] + (panels, n))
+
+
+def _pole_panels(centre, half_width, edges, n, f_out, w_out):
+    """Gauss-Legendre in u on each pole's panel with f = centre + half_width sinh(u).
+
+    Writes the nodes and weights into ``f_out`` and ``w_out`` (..., P n).
+    """
     t, wt = _unit_nodes(n)
     u_lo = np.arcsinh((edges[..., :-1] - centre) / half_width)
     u_hi = np.arcsinh((edges[..., 1:] - centre) / half_width)
     span = (u_hi - u_lo)[..., None]
-    u = u_lo[..., None] + span * t
+    u = span * t
+    u += u_lo[..., None]
     # sinh and cosh from one exponential (u is bounded by the panel ends).
     grow = np.exp(u, out=u)
     shrink = np.reciprocal(grow)
-    f = grow - shrink
+    f = _panels(f_out, centre.shape[-1], n)
+    np.subtract(grow, shrink, out=f)
     f *= 0.5 * half_width[..., None]
     f += centre[..., None]
     grow += shrink
-    w = np.multiply(grow, (0.5 * half_width[..., None] * span) * wt, out=grow)
-    shape = f.shape[:-2] + (-1,)
-    return f.reshape(shape), w.reshape(shape)
+    np.multiply(grow, (0.5 * half_width[..., None] * span) * wt, out=_panels(w_out, *f.shape[-2:]))
 
 
-_ONES = np.ones(TAIL_PANELS)
+_STEPS = np.arange(TAIL_PANELS, dtype=float)
 
 
-def _tail_panels(low_edge, high_edge, f_min, f_max, n):
-    """Both tails: log panels, then a closing panel at each end.
+def _tail_panels(low_edge, high_edge, f_min, f_max, n, f_out, w_out):
+    """Both tails: log panels, then a closing panel at each end, into ``f_out`` and ``w_out``.
 
     Below the lowest pole panel: TAIL_PANELS log panels down to
     edge / TAIL_REACH (or f_min), then one linear panel to f_min. Above the
     highest: TAIL_PANELS log panels up to edge * TAIL_REACH (or f_max), then
     the remainder, by the reciprocal map f = f_0 / t for an unbounded range
-    (its nodes never reach t = 0) or one more log panel.
+    (its nodes never reach t = 0) or one more log panel. Order in the output:
+    the lower and upper log panels (and the closing log panel), the linear
+    panel, the reciprocal panel.
     """
     t, wt = _unit_nodes(n)
     far_lo = np.maximum(low_edge / TAIL_REACH, f_min)
     far_hi = np.minimum(high_edge * TAIL_REACH, f_max)
-    steps = np.arange(TAIL_PANELS) / TAIL_PANELS
-    step_lo = np.log(low_edge / far_lo)[..., None] / TAIL_PANELS
-    step_hi = np.log(far_hi / high_edge)[..., None] / TAIL_PANELS
-    log_start = [far_lo[..., None] * np.exp(TAIL_PANELS * step_lo * steps),
-                 high_edge[..., None] * np.exp(TAIL_PANELS * step_hi * steps)]
-    log_span = [step_lo * _ONES, step_hi * _ONES]
-    if np.isfinite(f_max):
-        log_start.append(far_hi[..., None])
-        log_span.append(np.log(f_max / far_hi)[..., None])
-    start = np.concatenate(log_start, axis=-1)[..., None]
-    span = np.concatenate(log_span, axis=-1)[..., None]
-    f_log = start * np.exp(span * t)
-    w_log = f_log * span * wt
-    shape = f_log.shape[:-2] + (-1,)
+    finite = math.isfinite(f_max)
+    ends = [far_lo, low_edge, high_edge, far_hi]
+    if finite:
+        ends.append(np.full_like(far_hi, f_max))
+    log_ends = np.log(np.stack(ends, axis=-1))
+    # Lower and upper: TAIL_PANELS equal steps in log f each.
+    step = (log_ends[..., 1:4:2] - log_ends[..., 0:3:2]) / TAIL_PANELS
+    start = (log_ends[..., 0:3:2, None] + step[..., None] * _STEPS).reshape(step.shape[:-1]
+                                                                            + (-1,))
+    span = np.repeat(step, TAIL_PANELS, axis=-1)
+    if finite:
+        start = np.concatenate([start, log_ends[..., 3:4]], axis=-1)
+        span = np.concatenate([span, log_ends[..., 4:5] - log_ends[..., 3:4]], axis=-1)
+    panels = start.shape[-1]
+    f_log = _panels(f_out[..., :panels * n], panels, n)
+    np.multiply(span[..., None], t, out=f_log)
+    f_log += start[..., None]
+    np.exp(f_log, out=f_log)
+    np.multiply(f_log, span[..., None] * wt, out=_panels(w_out[..., :panels * n], panels, n))
     # Linear panel [f_min, far_lo].
+    linear = slice(panels * n, (panels + 1) * n)
     width = (far_lo - f_min)[..., None]
-    f_parts = [f_log.reshape(shape), f_min + width * t]
-    w_parts = [w_log.reshape(shape), width * wt]
-    if not np.isfinite(f_max):
-        f_parts.append(far_hi[..., None] / t)
-        w_parts.append(far_hi[..., None] / t**2 * wt)
-    return np.concatenate(f_parts, axis=-1), np.concatenate(w_parts, axis=-1)
+    np.multiply(width, t, out=f_out[..., linear])
+    f_out[..., linear] += f_min
+    np.multiply(width, wt, out=w_out[..., linear])
+    if not finite:
+        last = slice((panels + 1) * n, (panels + 2) * n)
+        np.divide(far_hi[..., None], t, out=f_out[..., last])
+        np.multiply(f_out[..., last], wt / t, out=w_out[..., last])
 
 
 def _tail_edges(edge, f_min, f_max):
