@@ -1,5 +1,6 @@
 """Wind cases, robustness, comparison and sweep through the case file and the CLI."""
 
+import copy
 import json
 from pathlib import Path
 
@@ -7,6 +8,7 @@ import pytest
 from typer.testing import CliRunner
 
 from tests.consistency import assert_consistent_results
+from tmd import cli
 from tmd.case import CaseError, read_case
 from tmd.cli import app
 
@@ -112,7 +114,15 @@ def test_heights_outside_the_building_exit_two(tmp_path):
     assert "Traceback" not in result.output
 
 
-def test_compare_lists_every_option_and_its_tmd_row_equals_design(tmp_path):
+def _shared_jobs(monkeypatch, design_results, demo_compare):
+    """The CLI on the session's shared demo runs (tests/conftest.py), not new ones."""
+    monkeypatch.setattr(cli, "design_job", lambda case: design_results(case.path))
+    monkeypatch.setattr(cli, "compare_job", lambda case: copy.deepcopy(demo_compare[1]))
+
+
+def test_compare_lists_every_option_and_its_tmd_row_equals_design(tmp_path, monkeypatch,
+                                                                  design_results, demo_compare):
+    _shared_jobs(monkeypatch, design_results, demo_compare)
     result = runner.invoke(app, ["compare", str(HARBOUR), "--out", str(tmp_path / "c")])
     assert result.exit_code == 0, result.output
     compared = json.loads((tmp_path / "c" / "results.json").read_text())
@@ -129,7 +139,9 @@ def test_compare_lists_every_option_and_its_tmd_row_equals_design(tmp_path):
     assert options[0]["mass_kg"] == pytest.approx(d["mass_kg"], rel=1e-9)
 
 
-def test_sweep_from_results_at_nominal_equals_the_design(tmp_path):
+def test_sweep_from_results_at_nominal_equals_the_design(tmp_path, monkeypatch, design_results,
+                                                         demo_compare):
+    _shared_jobs(monkeypatch, design_results, demo_compare)
     out = tmp_path / "d"
     assert runner.invoke(app, ["design", str(HARBOUR), "--out", str(out)]).exit_code == 0
     d = json.loads((out / "results.json").read_text())["design"]
