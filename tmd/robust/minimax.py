@@ -211,7 +211,8 @@ def robust_least_mass(loaded: LoadedMode, target_peak_m_s2: float, frequency_ban
     answer is then checked by :func:`peak_acceleration_band_max` on the finer
     grid; if a worst point between the optimiser's grid points exceeds the
     target, that point joins the grid and the search repeats (an exchange
-    step, at most four times).
+    step, at most four times), its mass search starting from the last answer
+    (a larger grid only raises the minimax value, so the least mass cannot fall).
     """
     bare = peak_acceleration_band_max(loaded, None, frequency_band,
                                       structure_damping_ratio=structure_damping_ratio)
@@ -221,15 +222,19 @@ def robust_least_mass(loaded: LoadedMode, target_peak_m_s2: float, frequency_ban
             f"m/s^2 across the band ±{frequency_band:g}: no damper is needed"))
     grid = factor_grid(frequency_band, optimiser_points)
     goal = target_peak_m_s2 * (1.0 - TARGET_MARGIN)
+    lowest = min_mass_ratio
     for _ in range(EXCHANGE_ROUNDS + 1):
         sizing = _robust_search(loaded, goal, target_peak_m_s2, frequency_band, grid,
-                                max_mass_ratio, min_mass_ratio, max_stroke_m,
+                                max_mass_ratio, lowest, max_stroke_m,
                                 structure_damping_ratio, check_points)
         worst = sizing.band_maximum
         if (sizing.governed_by != "target" or worst is None
                 or meets_target(worst.peak_acceleration_m_s2, target_peak_m_s2)):
             return sizing
         grid = np.union1d(grid, [worst.structure_frequency_factor])
+        # A larger grid only raises the minimax value at every mass, so the next
+        # least mass is at least this one: the next search starts from it.
+        lowest = max(lowest, sizing.design.mass_ratio)
     return RobustSizing(sizing.design, frequency_band, worst, False, "target", (
         f"the robust search did not settle: the band maximum {worst.peak_acceleration_m_s2:.6g} "
         f"m/s^2 exceeds the target at s = {worst.structure_frequency_factor:.5g}"))
