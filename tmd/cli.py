@@ -23,8 +23,6 @@ from rich.table import Table
 
 from tmd import terminal
 from tmd._version import __version__
-from tmd.building_case import is_building_case, load_building_case
-from tmd.building_job import building_design_job, building_tables
 from tmd.case import CaseError, read_case
 from tmd.constants import STANDARD_GRAVITY
 from tmd.dampers.tuned_mass import TunedMassDamper
@@ -259,6 +257,8 @@ def design(case: CaseArg,
            out: Annotated[Path | None, typer.Option(
                help="Folder for results.json (default: out/<case file stem>).")] = None):
     """Size a TMD for the case and write DIR/results.json."""
+    from tmd.building_case import is_building_case  # deferred: it loads the building stack
+
     if is_building_case(case):
         _design_building(case, out)
         return
@@ -279,6 +279,9 @@ def design(case: CaseArg,
 
 def _design_building(case_path: Path, out: Path | None) -> None:
     """A whole-building case ([[modes]]): size the dampers, print, write JSON and CSV tables."""
+    from tmd.building_case import load_building_case
+    from tmd.building_job import building_design_job, building_tables
+
     folder = out if out is not None else Path("out") / case_path.stem
     target = _OPEN.get().enter_context(OutputFolder(folder, protected=(case_path,)))
     c = load_building_case(case_path)
