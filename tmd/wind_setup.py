@@ -22,7 +22,6 @@ from typing import Annotated
 
 import numpy as np
 from pydantic import Field
-from scipy.optimize import brentq
 
 from tmd.spectra import TabulatedSpectrum
 from tmd.wind import acrosswind, vortex
@@ -211,6 +210,8 @@ def return_period_at_speed(speed_of: Callable[[float], float], speed_m_s: float)
     g_low, g_high = gap(low), gap(high)
     if g_low > 0 or g_high < 0:
         return None
+    from scipy.optimize import brentq  # deferred: reading a case must not load scipy
+
     return math.exp(brentq(gap, low, high, xtol=1e-12))
 
 

@@ -46,7 +46,6 @@ import math
 from collections.abc import Callable
 
 import numpy as np
-from scipy.integrate import quad
 
 SOURCE = ("AIJ Recommendations for Loads on Buildings (2004), A6.4 across-wind "
           "overturning-moment spectrum (coefficients from memory)")
@@ -312,6 +311,8 @@ def mode_shape_correction(height_m: float, mode_shape: Callable) -> float:
     scipy.integrate.quad.
     """
     h = float(height_m)
+    from scipy.integrate import quad  # deferred: reading a case must not load scipy
+
     value, _ = quad(lambda z: z * float(mode_shape(z)), 0.0, h, limit=200)
     return 3.0 * value / h**3
 
