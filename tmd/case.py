@@ -28,6 +28,7 @@ from tmd.loads import (
     aerodynamic_damping_ratio,
     reference_height,
 )
+from tmd.normalised_spectra import NormalisedFileError, read_normalised_psd_csv
 from tmd.registry import OBJECTIVES, OPTION_NAMES
 from tmd.rules import (
     MAX_OPTION_NAMES,
@@ -55,7 +56,9 @@ from tmd.wind_loads import WindLoad, compute_wind_loads
 from tmd.wind_setup import (
     AirDensity,
     across_wind_block,
+    load_table_problem,
     make_site,
+    normalised_case_problem,
     wind_table_problem,
 )
 
@@ -81,7 +84,19 @@ class ModeTable(_Table):
 
 
 class LoadTable(_Table):
-    force_psd_csv: str
+    force_psd_csv: str | None = None
+    normalised_force_psd_csv: str | None = None
+    normalised_quantity: Literal["generalised-force", "base-moment"] = "generalised-force"
+    return_periods_years: unique_list(ReturnPeriod, MAX_RETURN_PERIODS) | None = None
+    top_mean_speed_m_s: list[Speed] | None = None
+    air_density_kg_m3: AirDensity = AIR_DENSITY_KG_M3
+
+    @model_validator(mode="after")
+    def _one_table(self):
+        problem = load_table_problem(self)
+        if problem:
+            raise ValueError(problem)
+        return self
 
 
 class TargetTable(_Table):
@@ -244,6 +259,12 @@ class CaseTable(_Table):
 
     @model_validator(mode="after")
     def _one_load(self):
+        normalised = self.load is not None and self.load.normalised_force_psd_csv is not None
+        if normalised:
+            problem = normalised_case_problem(self)
+            if problem:
+                raise ValueError(problem)
+            return self
         if self.load is not None and (self.wind is not None or self.building is not None):
             raise ValueError("give either [load] or [wind] with [building], not both")
         if self.load is None and (self.wind is None or self.building is None):
@@ -348,6 +369,8 @@ def read_case(path: str | Path) -> Case:
         description=table.description, inputs=raw, tables=table,
         notes=_unusual(path, table),
     )
+    if table.load is not None and table.load.normalised_force_psd_csv is not None:
+        return _normalised_case(path, table, mode, common)
     if table.load is not None:
         csv_path = (path.parent / table.load.force_psd_csv).resolve()
         try:
@@ -389,6 +412,53 @@ def _wind_case(path: Path, table: CaseTable, mode: Mode, common: dict) -> Case:
                 target_return_period_years=table.target.return_period_years,
                 wind_settings=w.model_dump(), direction_of_response=w.direction_of_response,
                 across_wind=block, across_notes=(*site_notes, *across_notes), **common)
+
+
+def _normalised_case(path: Path, table: CaseTable, mode: Mode, common: dict) -> Case:
+    """A [load] normalised spectrum turned dimensional at each return period's top speed."""
+    load, w = table.load, table.wind
+    csv_path = (path.parent / load.normalised_force_psd_csv).resolve()
+    try:
+        normalised = read_normalised_psd_csv(csv_path, load.normalised_quantity)
+    except NormalisedFileError as exc:
+        raise CaseError(f"{path}: [load] normalised_force_psd_csv = "
+                        f"{load.normalised_force_psd_csv!r}: {exc}") from None
+    try:
+        building = Building(**table.building.model_dump())
+    except ValueError as exc:
+        raise CaseError(f"{path}: [building]: {exc}") from None
+    h, site, site_notes, speed_of = building.height_m, None, [], None
+    if w is not None:
+        try:
+            site, site_notes = make_site(w.model_dump(), h, path.parent)
+        except ValueError as exc:
+            raise CaseError(f"{path}: [wind]: {exc}") from None
+        periods = sorted(set(w.return_periods_years) | {table.target.return_period_years})
+        tops = [float(site.mean_speed(h, t)) for t in periods]
+        z_s = float(reference_height(site, building))
+        at_z_s = [float(site.mean_speed(z_s, t)) for t in periods]
+        rho = w.air_density_kg_m3
+
+        def speed_of(t):
+            return float(site.mean_speed(h, t))
+    else:
+        pairs = sorted(zip(load.return_periods_years, load.top_mean_speed_m_s, strict=True))
+        periods, tops = [p for p, _ in pairs], [u for _, u in pairs]
+        at_z_s, rho = [None] * len(periods), load.air_density_kg_m3
+    loads = tuple(
+        WindLoad(t, normalised.modal_force_spectrum(top_mean_speed_m_s=u, building=building,
+                                                    air_density_kg_m3=rho,
+                                                    label=f"(T = {t:g} yr)"),
+                 0.0, z, u)
+        for t, u, z in zip(periods, tops, at_z_s, strict=True))
+    block, across_notes = across_wind_block(building, mode.frequency_hz, periods, tops, speed_of)
+    block["normalised_rms_coefficient"] = normalised.rms_coefficient()
+    design = next(x for x in loads if x.return_period_years == table.target.return_period_years)
+    return Case(spectrum=design.spectrum, input_files=(path.resolve(), csv_path), site=site,
+                building=building, wind_loads=loads,
+                target_return_period_years=table.target.return_period_years,
+                wind_settings=w.model_dump() if w is not None else {}, across_wind=block,
+                across_notes=(*site_notes, *across_notes), **common)
 
 
 def _unusual(path: Path, table: CaseTable) -> tuple[str, ...]:

@@ -36,6 +36,67 @@ RETURN_PERIOD_SEARCH_YEARS = (0.02, 1e4)  # c_prob needs T > exp(-1/K); 1e4 yr i
 AirDensity = Annotated[float, Field(ge=0.9, le=1.5, strict=True, allow_inf_nan=False)]
 
 
+def load_table_problem(table) -> str:
+    """What is inconsistent in a [load] table ('' if nothing).
+
+    Parameters
+    ----------
+    table : tmd.case.LoadTable
+        The validated [load] table.
+
+    Returns
+    -------
+    str
+    """
+    given = table.model_fields_set
+    if (table.force_psd_csv is None) == (table.normalised_force_psd_csv is None):
+        return "give one of force_psd_csv or normalised_force_psd_csv"
+    extra = [k for k in ("normalised_quantity", "return_periods_years", "top_mean_speed_m_s",
+                         "air_density_kg_m3") if k in given]
+    if table.force_psd_csv is not None and extra:
+        return f"{', '.join(extra)} apply to normalised_force_psd_csv only"
+    if (table.return_periods_years is None) != (table.top_mean_speed_m_s is None):
+        return "give both return_periods_years and top_mean_speed_m_s (one speed per period)"
+    if (table.return_periods_years is not None
+            and len(table.return_periods_years) != len(table.top_mean_speed_m_s)):
+        return (f"top_mean_speed_m_s has {len(table.top_mean_speed_m_s)} values for "
+                f"{len(table.return_periods_years)} return_periods_years; give one per period")
+    return ""
+
+
+def normalised_case_problem(table) -> str:
+    """What a case with a [load] normalised spectrum lacks or has too much of ('' if nothing).
+
+    Parameters
+    ----------
+    table : tmd.case.CaseTable
+        The validated case.
+
+    Returns
+    -------
+    str
+    """
+    load = table.load
+    if table.building is None:
+        return ("[load] normalised_force_psd_csv needs [building] (breadth b, height H and the "
+                "mode shape turn it into a modal force)")
+    if (table.wind is None) == (load.top_mean_speed_m_s is None):
+        return ("[load] normalised_force_psd_csv needs the top speed per return period from one "
+                "route: [wind] (site model or profile table) or [load] top_mean_speed_m_s with "
+                "return_periods_years")
+    if table.target.return_period_years is None:
+        return ("[target] return_period_years is required with a normalised spectrum: name the "
+                "return period the target applies to")
+    if table.wind is not None and table.wind.aerodynamic_damping:
+        return ("[wind] aerodynamic_damping = true does not apply to a wind-tunnel spectrum "
+                "([load] normalised_force_psd_csv); set it false")
+    if (load.return_periods_years is not None
+            and table.target.return_period_years not in load.return_periods_years):
+        return (f"[target] return_period_years = {table.target.return_period_years:g} is not "
+                "among [load] return_periods_years")
+    return ""
+
+
 def wind_table_problem(table) -> str:
     """What is inconsistent in a [wind] table's profile and direction keys ('' if nothing).
 
