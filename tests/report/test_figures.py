@@ -10,7 +10,7 @@ from matplotlib.text import Text
 from rich.console import Console
 
 from tmd.jobs import loaded_mode_of
-from tmd.report import plots, series
+from tmd.report import plots, series, simulation_plots
 from tmd.report.assemble import render_report
 from tmd.report.comfort import comfort_limits, melbourne_palmer_peak_acceleration
 from tmd.report.progress import progress_bar, quiet_step
@@ -254,7 +254,7 @@ def test_option_figure(full_report):
 
 
 @pytest.mark.parametrize("figure", ["force_spectrum", "frequency_response", "acceleration_psd",
-                                    "detuning_sweep", "comfort", "options"])
+                                    "detuning_sweep", "comfort", "options", "time_history"])
 def test_figures_have_fixed_layouts_plain_ticks_and_nothing_cut_off(full_report, figure):
     """No layout engine at save time, no mathtext, and every label inside the canvas.
 
@@ -286,6 +286,10 @@ def test_figures_have_fixed_layouts_plain_ticks_and_nothing_cut_off(full_report,
         shown, _ = series.matching_limits(comfort_limits(), responses)
         ax = plots.plot_comfort_chart(shown, responses, target_peak_m_s2=0.1,
                                       target_return_period_years=1.0)
+    elif figure == "time_history":
+        # the layout does not depend on the record: a sampled sine stands in for one
+        t = np.linspace(0.0, 600.0, 6001)
+        ax = simulation_plots.time_history_excerpt(t, 0.05 * np.sin(t), 0.5 * np.cos(t))
     else:
         o = results["options"]
         ax = plots.plot_option_comparison(

@@ -81,7 +81,7 @@ def time_history_excerpt(time_s, acceleration_m_s2, stroke_m=None, *, ax=None):
     -------
     matplotlib Axes
     """
-    ax = _axes(ax)
+    ax = _axes(ax, twin=stroke_m is not None)  # room on the right for the stroke axis
     t = np.asarray(time_s, float)
     keep = t <= t[0] + EXCERPT_S
     ax.plot(t[keep], np.asarray(acceleration_m_s2)[keep], color=DAMPED, linewidth=0.8,
