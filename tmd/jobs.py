@@ -786,17 +786,13 @@ def _simulated_device(load: LoadedMode, device: dict, end_stop_travel_m):
     """Absorbers, nonlinear elements, integrated damping and freeboard of a device."""
     import numpy as np
 
-    from tmd.dampers.absorber import Absorbers, single_tmd
+    from tmd.dampers.absorber import Absorbers
     from tmd.timehistory import NonlinearAbsorber
 
     m = load.mode
     if device["kind"] == "tmd":
         d = device["damper"]
-        absorbers = single_tmd(m.frequency_hz, m.modal_mass_kg, d.mass_ratio,
-                               d.frequency_ratio, d.damping_ratio)
-        absorbers = Absorbers(*(np.asarray(v).reshape(1) for v in (
-            absorbers.mass_kg, absorbers.frequency_hz, absorbers.damping_ratio,
-            absorbers.coupling)))
+        absorbers = d.absorbers(m)  # one design (batch shape ()), one absorber
         if end_stop_travel_m is None:
             return absorbers, None, None, None
         return absorbers, NonlinearAbsorber(np.zeros(1), np.full(1, end_stop_travel_m)), None, None

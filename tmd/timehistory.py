@@ -436,7 +436,7 @@ def integrate_nonlinear(system: StateSpace, nonlinear: NonlinearAbsorber, force:
     phi_t, b0, b1, e0, e1 = phi.T, g0[:, 0], g1[:, 0], g0[:, 1:].T, g1[:, 1:].T
 
     def accel(x):
-        return nonlinear.acceleration(x[:, 1:n], x[:, n + 1:])
+        return nonlinear.acceleration(x[..., 1:n], x[..., n + 1:])
 
     states = np.empty(force.shape + (system.size,))
     states[:, 0] = initial_state
@@ -454,25 +454,5 @@ def integrate_nonlinear(system: StateSpace, nonlinear: NonlinearAbsorber, force:
             g = accel(x)
         states[:, i + 1] = x
     rates = (states @ system.a.T + force[..., None] * system.b
-             + accel_all(states, nonlinear, n) @ e.T)
+             + accel(states) @ e.T)
     return states, rates
-
-
-def accel_all(states: np.ndarray, nonlinear: NonlinearAbsorber, n: int) -> np.ndarray:
-    """Nonlinear absorber accelerations of stored states, shape (..., N) [m/s^2].
-
-    Parameters
-    ----------
-    states : array, shape (..., 2n)
-        States (x, r, x', r').
-    nonlinear : NonlinearAbsorber
-        The nonlinear elements.
-    n : int
-        Degrees of freedom N + 1.
-
-    Returns
-    -------
-    array, shape (..., N)
-        g(x) of :class:`NonlinearAbsorber`.
-    """
-    return nonlinear.acceleration(states[..., 1:n], states[..., n + 1:])
