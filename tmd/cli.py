@@ -19,16 +19,29 @@ from typing import Annotated
 
 import typer
 from rich.markup import escape
-from rich.table import Table
 
 from tmd import terminal
 from tmd._version import __version__
 from tmd.case import CaseError, read_case
-from tmd.constants import STANDARD_GRAVITY
 from tmd.dampers.tuned_mass import TunedMassDamper
 from tmd.outputs import OutputFolder, to_json
 from tmd.rules import FrequencyRatio, InputError, Ratio, require
-from tmd.schema import CAUTIONS
+from tmd.terminal import (
+    accel,
+    err_console,
+    out_console,
+    print_building,
+    print_end_stops,
+    print_identified,
+    print_notes,
+    print_recommendation,
+    print_retuned,
+    print_robustness,
+    print_simulation,
+    print_wind,
+    return_period_table,
+    summary_table,
+)
 
 # The jobs (and with them scipy and the damper stack) are imported on first use,
 # so that --help and a bad-input exit stay fast. They are attributes of this
@@ -51,8 +64,6 @@ def _job(name):
 
 app = typer.Typer(add_completion=False, no_args_is_help=True,
                   help="Size passive dampers for a wind-excited building mode.")
-out_console = terminal.console()
-err_console = terminal.console(stderr=True)
 
 
 def _show_version(value: bool) -> None:
@@ -133,124 +144,6 @@ def _numerical(where: str, exc: Exception) -> str:
             "Set TMD_DEBUG=1 for a traceback")
 
 
-def _accel(value: float) -> str:
-    return f"{value:.4f} m/s² ({1000 * value / STANDARD_GRAVITY:.1f} milli-g)"
-
-
-def _summary(result: dict) -> Table:
-    table = Table(title=f"{result['case']['name']}", show_lines=False)
-    table.add_column("quantity")
-    table.add_column("bare building", justify="right")
-    rec = result.get("recommended") or {}
-    key = rec.get("design_key") or "design"
-    label = {"band_design": "recommended: band-robust",
-             "design": "recommended: nominal"}.get(key) if rec else "with damper"
-    table.add_column(label, justify="right")
-    bare, design = result["bare"], result.get(key)
-    target = result["target"]["peak_acceleration_m_s2"]
-    table.add_row("target peak acceleration", _accel(target), "")
-    table.add_row("peak acceleration", _accel(bare["peak_acceleration_m_s2"]),
-                  _accel(design["peak_acceleration_m_s2"]) if design else "-")
-    table.add_row("rms acceleration", f"{bare['sigma_acceleration_m_s2']:.4f} m/s²",
-                  f"{design['sigma_acceleration_m_s2']:.4f} m/s²" if design else "-")
-    table.add_row("peak factor", f"{bare['peak_factor']:.3f}",
-                  f"{design['peak_factor']:.3f}" if design else "-")
-    if design:
-        rows = [
-            ("mass ratio", f"{design['mass_ratio']:.5f}"),
-            ("damper mass", f"{design['mass_kg'] / 1000:,.1f} t"),
-            ("frequency ratio", f"{design['frequency_ratio']:.4f}"),
-            ("damper frequency", f"{design['frequency_hz']:.4f} Hz"),
-            ("damper damping ratio", f"{design['damping_ratio']:.4f}"),
-            ("spring stiffness", f"{design['stiffness_n_per_m'] / 1000:,.1f} kN/m"),
-            ("dashpot coefficient", f"{design['damping_n_s_per_m'] / 1000:,.2f} kN·s/m"),
-            ("rms / peak stroke", f"{design['sigma_stroke_m']:.3f} / "
-                                  f"{design['peak_stroke_m']:.3f} m (travel ±)"),
-            ("peak damper force", f"{design['peak_damper_force_n'] / 1000:,.1f} kN"),
-            ("effective damping (added)", f"{design['effective_damping_ratio']:.4f} "
-                                          f"({design['added_damping_ratio']:.4f})"),
-        ]
-        for name, value in rows:
-            table.add_row(name, "", value)
-    return table
-
-
-def _return_period_table(result: dict) -> Table | None:
-    rows = result.get("by_return_period")
-    if not rows:
-        return None
-    table = Table(title="per return period (design at the target's)")
-    limited = any("stroke_within_limit" in (row.get("design") or {}) for row in rows)
-    for name in ("return period", "bare peak acc.", "damped peak acc.", "peak stroke",
-                 "peak damper force") + (("stroke limit",) if limited else ()):
-        table.add_column(name, justify="right")
-    for row in rows:
-        d = row.get("design") or {}
-        cells = [
-            f"{row['return_period_years']:g} y", _accel(row["bare"]["peak_acceleration_m_s2"]),
-            _accel(d["peak_acceleration_m_s2"]) if d else "-",
-            f"{d['peak_stroke_m']:.3f} m" if d else "-",
-            f"{d['peak_damper_force_n'] / 1000:,.1f} kN" if d else "-"]
-        if limited:
-            ok = d.get("stroke_within_limit")
-            cells.append("-" if ok is None else "within" if ok else "[red]EXCEEDED[/]")
-        table.add_row(*cells)
-    return table
-
-
-def _end_stop_table(result: dict) -> Table | None:
-    """Travel, stop contacts, impact velocity and connection-force estimate."""
-    e = result.get("end_stops")
-    if not e:
-        return None
-    table = Table(title=f"end-stops: travel ±{e['travel_m']:.3f} m ({e['travel_basis']})")
-    for name in ("return period", "peak stroke", "contacts / hour / side",
-                 "connection force (estimate)"):
-        table.add_column(name, justify="right")
-    for row in e["by_return_period"]:
-        period = row["return_period_years"]
-        table.add_row("design load" if period is None else f"{period:g} y",
-                      f"{row['peak_stroke_m']:.3f} m",
-                      f"{3600 * row['contact_rate_per_side_hz']:.3g}",
-                      f"{row['connection_force_estimate_n'] / 1000:,.1f} kN")
-    return table
-
-
-def _print_recommendation(result: dict) -> None:
-    rec = result.get("recommended")
-    if not rec:
-        return
-    which = {"band_design": "the band-robust design", "design": "the nominal design",
-             None: "no damper"}[rec["design_key"]]
-    out_console.print(f"[bold]Recommended: {which}.[/] " + escape(rec["why"]), highlight=False)
-    out_console.print("[dim]Rule: " + escape(rec["rule"]) + ".[/]", highlight=False)
-    if rec.get("end_stops") and (table := _end_stop_table({"end_stops": rec["end_stops"]})):
-        table.title = f"recommended design, {table.title}"
-        out_console.print(table)
-
-
-def _print_end_stops(result: dict) -> None:
-    if (table := _end_stop_table(result)) is None:
-        return
-    e = result["end_stops"]
-    out_console.print(table)
-    where = ("" if e["extreme_return_period_years"] is None
-             else f" at {e['extreme_return_period_years']:g} years")
-    out_console.print(
-        f"impact velocity at the stops{where}: mean {e['impact_velocity_mean_m_s']:.2f} m/s, "
-        f"{e['impact_velocity_rare_m_s']:.2f} m/s at 1 contact in "
-        f"{1 / e['impact_velocity_rare_probability']:.0f} (Rayleigh); kinetic energy at the "
-        f"mean {e['impact_energy_mean_j'] / 1000:,.1f} kJ", highlight=False)
-    out_console.print("[dim]" + escape(e["note"]) + "[/]", highlight=False)
-
-
-def _print_notes(result: dict) -> None:
-    for message in result.get("warnings", []):
-        err_console.print(f"[yellow]warning:[/] {escape(message)}", highlight=False)
-    out_console.print("[dim]Cautions: " + escape(" ".join(result["cautions"])) + "[/]",
-                      highlight=False)
-
-
 @app.command()
 @_guarded
 def design(case: CaseArg,
@@ -264,16 +157,16 @@ def design(case: CaseArg,
         return
     c, target = _case_and_output(case, out)
     result = _job("design_job")(c)
-    out_console.print(_summary(result))
-    if (table := _return_period_table(result)) is not None:
+    out_console.print(summary_table(result))
+    if (table := return_period_table(result)) is not None:
         out_console.print(table)
     sizing = result["sizing"]
     colour = "green" if sizing["meets_target"] else "red"
     out_console.print(f"[{colour}]{escape(sizing['message'])}[/]", highlight=False)
-    _print_end_stops(result)
-    _print_robustness(result)
-    _print_recommendation(result)
-    _print_notes(result)
+    print_end_stops(result)
+    print_robustness(result)
+    print_recommendation(result)
+    print_notes(result)
     _write(c, result, target)
 
 
@@ -287,37 +180,7 @@ def _design_building(case_path: Path, out: Path | None) -> None:
     c = load_building_case(case_path)
     target.protect(c.input_files)
     result = building_design_job(c)
-    table = Table(title=escape(f"{result['case']['name']}: peak accelerations [m/s²], design "
-                               "return period"))
-    for column in ("wind", "point", "bare resultant", "damped x", "damped y",
-                   "damped resultant", "torsional share"):
-        table.add_column(column, justify="left" if column in ("wind", "point") else "right")
-    period = result["target"]["return_period_years"]
-    for row in result["points"]:
-        if row["return_period_years"] not in (period, None):
-            continue
-        d = row.get("damped", row["bare"])
-        table.add_row(row["wind_direction"], row["point"],
-                      f"{row['bare']['peak_resultant_m_s2']:.4f}",
-                      *(f"{v:.4f}" for v in d["peak_acceleration_m_s2"]),
-                      f"{d['peak_resultant_m_s2']:.4f}", f"{100 * d['torsional_share']:.0f}%")
-    out_console.print(table)
-    for axis in result["damper_axes"]:
-        out_console.print(escape(
-            f"{axis['damper']} {axis['direction']}: {axis['mass_kg'] / 1000:,.1f} t, "
-            f"{axis['frequency_hz']:.4f} Hz, damping ratio {axis['damping_ratio']:.3f}, "
-            f"peak stroke {axis['peak_stroke_m']:.3f} m, peak force "
-            f"{axis['peak_force_n'] / 1000:,.0f} kN"), highlight=False)
-    sizing = result["sizing"]
-    for g in result["governing"]:
-        period = g["return_period_years"]
-        when = f"{period:g}-year" if period is not None else "design load"
-        out_console.print(escape(f"governing, {when}: {g['point']}, wind {g['wind_direction']}, "
-                                 f"{g['component']}, {_accel(g['peak_acceleration_m_s2'])}"),
-                          highlight=False)
-    colour = "green" if sizing["meets_target"] else "red"
-    out_console.print(f"[{colour}]{escape(sizing['message'])}[/]", highlight=False)
-    _print_notes(result)
+    print_building(result)
     # Imported here: matplotlib is only needed by the commands that write a report.
     from tmd.report.building import building_report
 
@@ -352,43 +215,6 @@ def _write(c, result, target: OutputFolder):
                              "report.html, figures/, tables/)"), highlight=False, soft_wrap=True)
 
 
-def _print_robustness(result: dict) -> None:
-    """The nominal and robust designs across the band, and what robustness costs."""
-    summary = result.get("robustness_summary")
-    if summary is None:
-        return
-    band = result["frequency_band"]
-    table = Table(title=f"robustness: structure frequency within ±{100 * band:g}%")
-    table.add_column("design")
-    table.add_column("mass", justify="right")
-    table.add_column("peak acc. at nominal", justify="right")
-    table.add_column("worst peak acc. in band", justify="right")
-    d = result["design"]
-    table.add_row("nominal optimum", f"{d['mass_kg'] / 1000:,.1f} t",
-                  _accel(d["peak_acceleration_m_s2"]),
-                  _accel(result["peak_acceleration_band_max_m_s2"]))
-    r = result.get("band_design")
-    if r:
-        label = ("robust (meets target across band)" if r["meets_target_across_band"]
-                 else "robust (best across band; target NOT met)")
-        table.add_row(label, f"{r['mass_kg'] / 1000:,.1f} t",
-                      _accel(r["peak_acceleration_m_s2"]),
-                      _accel(r["peak_acceleration_band_max_m_s2"]))
-    out_console.print(table)
-    notes = [f"the nominal design's worst peak in the band is "
-             f"{100 * summary['nominal_band_loss']:.1f}% above its nominal peak"]
-    if summary.get("robust_extra_mass_kg") is not None:
-        notes.append(f"the robust design costs {summary['robust_extra_mass_kg'] / 1000:,.1f} t "
-                     f"({100 * summary['robust_extra_mass_fraction']:.0f}%) more mass")
-    p = result.get("probabilistic")
-    if p:
-        notes.append(f"probability of exceeding the target: nominal "
-                     f"{p['nominal']['exceedance_probability']:.3f}"
-                     + (f", robust {p['robust']['exceedance_probability']:.3f}"
-                        if p.get("robust") else ""))
-    out_console.print("; ".join(notes), highlight=False)
-
-
 MassKg = Annotated[float | None, typer.Option(
     "--damper-mass-kg", help="Built damper mass m_d [kg] (instead of the ratios).")]
 StiffnessNPerM = Annotated[float | None, typer.Option(
@@ -416,10 +242,10 @@ def evaluate(case: CaseArg,
     if json_output:
         typer.echo(to_json({"design": result["design"]}), nl=False)
         return
-    out_console.print(_summary(result))
+    out_console.print(summary_table(result))
     line, colour = terminal.verdict_line(result)
     out_console.print(f"[{colour}]{escape(line)}[/]", highlight=False)
-    _print_notes(result)
+    print_notes(result)
 
 
 def _damper_from_options(mass_ratio, frequency_ratio, damping_ratio,
@@ -433,36 +259,6 @@ def _damper_from_options(mass_ratio, frequency_ratio, damping_ratio,
     return TunedMassDamper(*values)
 
 
-WIND_ROWS = (
-    ("reference height z_s", "reference_height_m", "{:.1f} m"),
-    ("mean speed v_m(z_s)", "mean_speed_m_s", "{:.2f} m/s"),
-    ("turbulence intensity", "turbulence_intensity", "{:.3f}"),
-    ("length scale L(z_s)", "length_scale_m", "{:.1f} m"),
-    ("S_u at the mode's frequency", "wind_spectrum_at_mode_m2_s2_per_hz", "{:.4g} m²/s²/Hz"),
-    ("aerodynamic damping ratio", "aerodynamic_damping_ratio", "{:.4f}"),
-    ("background factor B²", "background_factor_sq", "{:.4f}"),
-    ("resonance factor R²", "resonance_factor_sq", "{:.4f}"),
-    ("size reduction R_h", "size_reduction_height", "{:.4f}"),
-    ("size reduction R_b", "size_reduction_breadth", "{:.4f}"),
-    ("total log decrement", "log_decrement_total", "{:.4f}"),
-    ("up-crossing frequency", "upcrossing_hz", "{:.4f} Hz"),
-    ("peak factor k_p", "peak_factor", "{:.3f}"),
-    ("structural factor c_s c_d", "structural_factor", "{:.3f}"),
-    ("acceleration peak factor", "peak_factor_acceleration", "{:.3f}"),
-    ("EN Annex B rms acceleration", "sigma_acceleration_m_s2", "{:.4f} m/s²"),
-    ("EN Annex B peak acceleration", "peak_acceleration_m_s2", "{:.4f} m/s²"),
-    ("spectral rms acceleration", "spectral_sigma_acceleration_m_s2", "{:.4f} m/s²"),
-    ("spectral peak acceleration", "spectral_peak_acceleration_m_s2", "{:.4f} m/s²"),
-    ("across-wind spectral peak acceleration", "across_spectral_peak_acceleration_m_s2",
-     "{:.4f} m/s²"),
-    ("top speed U_H", "top_mean_speed_m_s", "{:.2f} m/s"),
-    ("reduced velocity U_H/(f_s b)", "reduced_velocity", "{:.2f}"),
-    ("critical speed v_crit = b f_s/St", "critical_speed_m_s", "{:.2f} m/s"),
-    ("lock-in possible (v_crit <= 1.25 v_m)", "lock_in_possible", "{}"),
-    ("rms lift coefficient C'_L", "rms_lift_coefficient", "{:.4f}"),
-)
-
-
 @app.command()
 @_guarded
 def wind(case: CaseArg,
@@ -472,21 +268,8 @@ def wind(case: CaseArg,
     if json_output:
         typer.echo(to_json(result), nl=False)
         return
-    table = Table(title=f"{result['case']['name']}: bare building, code route and spectral route")
-    table.add_column("quantity")
-    for row in result["return_periods"]:
-        table.add_column(f"{row['return_period_years']:g}-year", justify="right")
-    rows = result["return_periods"]
-    for label, key, fmt in WIND_ROWS:
-        if all(key in row for row in rows):  # Annex B rows only where EN applies
-            table.add_row(label, *(fmt.format(row[key]) for row in rows))
-    out_console.print(table)
-    if result.get("direction_of_response") == "across":
-        out_console.print("The spectral route is across-wind (no aerodynamic damping).")
-    else:
-        out_console.print("[dim]Both along-wind routes include the aerodynamic damping of "
-                          "EN 1991-1-4 (F.18); the across-wind row has none.[/]")
-    _print_notes(result)
+    print_wind(result)
+    print_notes(result)
 
 
 @app.command()
@@ -499,7 +282,7 @@ def compare(case: CaseArg,
     c, target = _case_and_output(case, out)
     result = _job("compare_job")(c)
     out_console.print(terminal.options_table(result))
-    _print_notes(result)
+    print_notes(result)
     _write(c, result, target)
 
 
@@ -526,8 +309,8 @@ def sweep(case: CaseArg,
     table = terminal.sweep_table(result)
     out_console.print(table)
     out_console.print(f"worst peak acceleration in the band ±{100 * result['frequency_band']:g}%:"
-                      f" {_accel(result['peak_acceleration_band_max_m_s2'])}", highlight=False)
-    _print_notes(result)
+                      f" {accel(result['peak_acceleration_band_max_m_s2'])}", highlight=False)
+    print_notes(result)
 
 
 RATIO_OPTIONS = ("--mass-ratio", "--frequency-ratio", "--damping-ratio")
@@ -617,41 +400,7 @@ def retune(case: CaseArg,
     if json_output:
         typer.echo(to_json(result), nl=False)
         return
-    r = result["retuned"]
-    s = r["structure"]
-    table = Table(title=f"{c.name}: re-tuning to the measured structure")
-    for name in ("quantity", "as installed", "re-tuned", "specified range"):
-        table.add_column(name, justify="right")
-    inst = r["installed"]
-    table.add_row("damper frequency", f"{inst['frequency_hz']:.4f} Hz",
-                  f"{r['frequency_hz']:.4f} Hz",
-                  f"{r['adjustment_frequency_min_hz']:.4f} .. "
-                  f"{r['adjustment_frequency_max_hz']:.4f} Hz")
-    table.add_row("spring stiffness", f"{inst['stiffness_n_per_m'] / 1000:,.1f} kN/m",
-                  f"{r['stiffness_n_per_m'] / 1000:,.1f} kN/m",
-                  f"{r['adjustment_stiffness_min_n_per_m'] / 1000:,.1f} .. "
-                  f"{r['adjustment_stiffness_max_n_per_m'] / 1000:,.1f} kN/m")
-    table.add_row("damper damping ratio", f"{inst['damping_ratio']:.4f}",
-                  f"{r['damping_ratio']:.4f}", "")
-    table.add_row("dashpot coefficient", f"{inst['damping_n_s_per_m'] / 1000:,.2f} kN·s/m",
-                  f"{r['damping_n_s_per_m'] / 1000:,.2f} kN·s/m", "")
-    table.add_row("peak acceleration", _accel(r["peak_acceleration_before_m_s2"]),
-                  _accel(r["peak_acceleration_after_m_s2"]), "")
-    table.add_row("peak stroke", f"{r['peak_stroke_before_m']:.3f} m",
-                  f"{r['peak_stroke_after_m']:.3f} m", "")
-    out_console.print(table)
-    verdict = ("within" if r["within_adjustment_range"] else "OUTSIDE")
-    out_console.print(
-        f"measured structure: f = {s['frequency_hz']:.4f} Hz, M* = {s['modal_mass_kg']:,.0f} kg, "
-        f"damping {s['structural_damping_ratio']:.4f} ({s['damping_source']}) + aerodynamic "
-        f"{s['aerodynamic_damping_ratio']:.4f} at the design wind; the re-tuned damper is "
-        f"{verdict} the specified adjustment range (±{100 * r['adjustment_band']:g}%)",
-        highlight=False)
-    out_console.print("[dim]" + escape(r["damping_note"]) + "[/]", highlight=False)
-    for message in r["warnings"]:
-        err_console.print(f"[yellow]warning:[/] {escape(message)}", highlight=False)
-    out_console.print("[dim]Cautions: " + escape(" ".join(r["cautions"])) + "[/]",
-                      highlight=False)
+    print_retuned(result, c.name)
 
 
 @app.command()
@@ -671,26 +420,7 @@ def identify(record: Annotated[Path, typer.Argument(
     if json_output:
         typer.echo(to_json(result), nl=False)
         return
-    table = Table(title=f"{record.name}: identified mode ({result['duration_s']:.0f} s record)")
-    for name in ("method", "frequency", "damping ratio"):
-        table.add_column(name, justify="right")
-    for m in result["methods"]:
-        table.add_row(m["method"], f"{m['frequency_hz']:.5f} Hz", f"{m['damping_ratio']:.5f}")
-    table.add_row("reported", f"{result['frequency_hz']:.5f} Hz", f"{result['damping_ratio']:.5f}")
-    out_console.print(table)
-    out_console.print(
-        f"spread between the methods: frequency {100 * result['frequency_spread']:.2f}%, damping "
-        f"{100 * result['damping_spread']:.1f}%; expected random error for this record (Au's "
-        f"law): frequency {100 * result['predicted_frequency_cov']:.2f}%, damping "
-        f"{100 * result['predicted_damping_cov']:.0f}%", highlight=False)
-    out_console.print(escape(f"use: tmd retune CASE --design-from results.json "
-                             f"--measured-frequency-hz {result['frequency_hz']:.6g} "
-                             f"--measured-damping-ratio {result['damping_ratio']:.6g}"),
-                      highlight=False, soft_wrap=True)
-    out_console.print("[dim]" + escape(result["damping_note"]) + "[/]", highlight=False)
-    for message in result["warnings"]:
-        err_console.print(f"[yellow]warning:[/] {escape(message)}", highlight=False)
-    out_console.print("[dim]Cautions: " + escape(" ".join(CAUTIONS)) + "[/]", highlight=False)
+    print_identified(result, record.name)
 
 
 SIMULATION_OPTIONS = {"records": "--records", "duration_s": "--duration-s",
@@ -741,8 +471,8 @@ def simulate(case: CaseArg,
     if json_output:
         typer.echo(to_json(result), nl=False)
         return
-    _print_simulation(result)
-    _print_notes(result)
+    print_simulation(result)
+    print_notes(result)
     from tmd.report.simulation_plots import simulation_files
 
     files = {"results.json": to_json(result)} | simulation_files(result, holder["history"],
@@ -774,34 +504,4 @@ def _simulated_device_from(c, path: Path, option: str) -> dict:
     if not rows or not rows[0].get("mass_kg"):
         raise CaseError(f"{path}: holds no sized liquid-column option")
     return {"kind": "liquid-column", "row": rows[0]}
-
-
-def _print_simulation(result: dict) -> None:
-    """One table per load: simulated maxima against the spectral peaks."""
-    block = result["simulation"]
-    for row in block["by_load"]:
-        years = row.get("return_period_years")
-        title = (f"{result['case']['name']}: {block['records']} simulated records of "
-                 f"{block['duration_s']:g} s" + (f", {years:g}-year wind" if years else ""))
-        table = Table(title=title)
-        for name in ("response", "rms sim. / spectral", "mean max |x|", "Davenport",
-                     "Vanmarcke", "sim. / Davenport"):
-            table.add_column(name, justify="right")
-        entries = [("bare acc. (m/s²)", row["bare"]["acceleration"], "m_s2"),
-                   ("design acc. (m/s²)", row["design"]["acceleration"], "m_s2"),
-                   ("stroke (m)", row["design"]["stroke"], "m")]
-        for label, s, u in entries:
-            table.add_row(label, f"{s[f'sigma_{u}'] / s[f'sigma_spectral_{u}']:.4f}",
-                          f"{s[f'max_abs_mean_{u}']:.4g}", f"{s[f'davenport_peak_{u}']:.4g}",
-                          f"{s[f'vanmarcke_peak_two_sided_{u}']:.4g}",
-                          f"{s['max_abs_mean_to_davenport_ratio']:.3f}")
-        out_console.print(table)
-        acc = row["design"]["acceleration"]
-        if "records_over_limit_fraction" in acc:
-            out_console.print(f"records whose largest |a| exceeds the target: "
-                              f"{100 * acc['records_over_limit_fraction']:.1f}%",
-                              highlight=False)
-        if "hourly_end_stop_contact_count" in row["design"]:
-            contacts = row["design"]["hourly_end_stop_contact_count"]
-            out_console.print(f"end-stop contacts: {contacts:.2f} per hour", highlight=False)
 

@@ -1,0 +1,112 @@
+"""Robustness in the jobs: the [robustness] settings, the detuning sweeps, the band
+check, the band-robust and probabilistic designs, and the sweep job.
+"""
+
+from __future__ import annotations
+
+from tmd.case import Case, RobustnessTable
+from tmd.dampers.tuned_mass import TunedMassDamper
+from tmd.design import LoadedMode, Sizing, evaluate_tmd
+from tmd.jobs.shared import header_block, load_name, loaded_mode_of, target_block, with_notes
+from tmd.notes import about
+from tmd.robust import (
+    design_sweeps,
+    peak_acceleration_band_max,
+    robust_least_mass,
+    robustness_study,
+    sweep_structure_frequency,
+)
+from tmd.robust.probabilistic import Distribution, Uncertainty
+from tmd.schema import design_block
+
+
+def robustness_settings(case: Case) -> RobustnessTable:
+    """The case's [robustness] table; without one, its defaults with the sweeps only.
+
+    The detuning sweeps and the band maximum run for every design (an
+    engineer always needs the sensitivity to detuning); the robust re-design
+    and the probabilistic study, the heavier parts, only when the case's
+    [robustness] table asks for them.
+    """
+    if case.tables.robustness is not None:
+        return case.tables.robustness
+    return RobustnessTable(robust_design=False)
+
+
+def bare_band_maximum(load: LoadedMode, band: float):
+    return peak_acceleration_band_max(load, None, band)
+
+
+def bare_sweeps(load: LoadedMode, settings: RobustnessTable) -> dict:
+    return {"frequency_band": settings.frequency_band,
+            "sweep_bare": sweep_structure_frequency(load, None,
+                                                    sweep_range=settings.sweep_range)}
+
+
+def size_for_band(case: Case, load: LoadedMode, band: float, worst):
+    """The least-mass TMD meeting the target across the band, when the bare building
+    meets it only at the nominal frequency (returns the Sizing and the RobustSizing)."""
+    robust = robust_least_mass(load, case.target_peak_m_s2, band,
+                               max_mass_ratio=case.damper.max_mass_ratio,
+                               max_stroke_m=case.damper.max_stroke_m)
+    design = robust.design
+    reason = (f"the bare building meets the target {case.target_peak_m_s2:.4g} m/s^2 at the "
+              f"nominal frequency but not across the band ±{band:g} (worst peak "
+              f"{worst.peak_acceleration_m_s2:.4g} m/s^2 at s = "
+              f"{worst.structure_frequency_factor:.4g}), so the damper is sized for the band: ")
+    if design is None:
+        return Sizing(None, True, "bare", reason + robust.message), robust
+    return Sizing(design, design.meets_target, "band", reason + robust.message), robust
+
+
+def robustness_block(case: Case, damper: TunedMassDamper, *, robust=None) -> dict:
+    """Detuning sweeps, band maximum, robust and probabilistic designs of the case.
+
+    Parameters
+    ----------
+    case : Case
+        The case; its [robustness] table, or the defaults of
+        :func:`robustness_settings`.
+    damper : TunedMassDamper
+        The design to study.
+    robust : tmd.robust.RobustSizing, optional
+        A robust design already sized (then it is reported, not re-sized).
+
+    Returns
+    -------
+    dict
+        The sweeps, band maximum and summary, plus ``band_design`` and
+        ``probabilistic`` when asked for.
+    """
+    r = robustness_settings(case)
+    uncertainty = None
+    if r.probabilistic is not None:
+        p = r.probabilistic
+        uncertainty = Uncertainty(p.frequency_cov, p.damping_cov, Distribution(p.distribution),
+                                  p.exceedance_probability, p.seed, p.sample_count)
+    with about(f"detuning sweep and band check on the {load_name(case)}"):
+        study = robustness_study(
+            loaded_mode_of(case), damper, case.target_peak_m_s2,
+            frequency_band=r.frequency_band, sweep_range=r.sweep_range,
+            robust_design=r.robust_design, max_mass_ratio=case.damper.max_mass_ratio,
+            max_stroke_m=case.damper.max_stroke_m, probabilistic=uncertainty,
+            robust_sizing=robust)
+    study["robustness_summary"] = study.pop("summary")
+    return study
+
+
+def sweep_job(case: Case, damper: TunedMassDamper) -> dict:
+    """Detuning sweeps of any given design (e.g. an as-built damper)."""
+    r = robustness_settings(case)
+
+    def build():
+        load = loaded_mode_of(case)
+        result = header_block(case) | {
+            "target": target_block(case),
+            "design": design_block(evaluate_tmd(load, damper, case.target_peak_m_s2)),
+        }
+        with about(f"detuning sweep on the {load_name(case)}"):
+            return result | design_sweeps(load, damper, frequency_band=r.frequency_band,
+                                          sweep_range=r.sweep_range)
+
+    return with_notes(build, case)

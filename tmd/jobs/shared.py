@@ -1,0 +1,200 @@
+"""The case's loaded modes and the results blocks every job shares (header, target,
+bare response, per-return-period rows, end-stop checks, warnings and cautions).
+"""
+
+from __future__ import annotations
+
+import warnings
+from collections.abc import Callable
+from dataclasses import asdict
+from pathlib import Path
+
+from tmd._version import __version__
+from tmd.case import Case
+from tmd.design import LoadedMode, TmdDesign, bare_response, evaluate_tmd
+from tmd.endstops import StrokeLimitWarning, end_stop_block, stroke_limit_messages
+from tmd.notes import DEFAULT_LOAD, about, collect
+from tmd.schema import CAUTIONS, SCHEMA_VERSION
+from tmd.verdict import meets_target
+from tmd.wind_loads import WindLoad
+
+
+def loaded_mode_of(case: Case, wind_load: WindLoad | None = None) -> LoadedMode:
+    """The case's mode under its design load (or one return period's wind load).
+
+    The mode's damping includes the aerodynamic damping of that load when
+    the case asks for it; accelerations are at the evaluation height.
+    """
+    load = wind_load if wind_load is not None else case.design_wind_load
+    method = spectral_peak_method(case)
+    if load is None:
+        return LoadedMode(case.mode, case.spectrum, case.duration_s, case.shape_factor, method)
+    aero = load.aerodynamic_damping_ratio
+    mode = case.mode.with_damping(case.mode.damping_ratio + aero)
+    return LoadedMode(mode, load.spectrum, case.duration_s, case.shape_factor, method,
+                      aerodynamic_damping_ratio=aero)
+
+
+def peak_method(case: Case) -> str:
+    """The case's ``[target] peak_method``: davenport, vanmarcke or simulated."""
+    return case.tables.target.peak_method if case.tables is not None else "davenport"
+
+
+def spectral_peak_method(case: Case) -> str:
+    """The spectral peak estimate of the engine's load cases.
+
+    ``"simulated"`` sizes with Davenport's peak, corrected by simulation in
+    an outer loop (:mod:`tmd.simulated_sizing`).
+    """
+    method = peak_method(case)
+    return "davenport" if method == "simulated" else method
+
+
+def load_name(case: Case, wind_load: WindLoad | None = None) -> str:
+    """The load in words, for warnings: "1-year wind (design load)" or the force spectrum file."""
+    if case.wind_loads:
+        period = (wind_load.return_period_years if wind_load is not None
+                  else case.target_return_period_years)
+        design = " (design load)" if period == case.target_return_period_years else ""
+        return f"{period:g}-year wind{design}"
+    source = getattr(case.spectrum, "source", "") or "the force spectrum"
+    return f"design load ({Path(source).name})"
+
+
+def with_notes(build: Callable[[], dict], case: Case | None = None) -> dict:
+    """Run a job's ``build``; add its warnings (one per cause and load) and the cautions.
+
+    Warnings about the case's inputs come first; the computation's own are
+    merged by :func:`tmd.notes.collect`, each naming its load.
+    """
+    first = (*case.notes, *case.across_notes) if case is not None else ()
+    with about(load_name(case) if case is not None else DEFAULT_LOAD):
+        result, lines = collect(build, first)
+    result["warnings"] = lines
+    result["cautions"] = list(CAUTIONS)
+    return result
+
+
+def header_block(case: Case) -> dict:
+    return {
+        "tool_version": __version__,
+        "schema_version": SCHEMA_VERSION,
+        "case": {"name": case.name, "path": str(case.path), "inputs": case.inputs},
+    }
+
+
+def bare_block(load: LoadedMode) -> dict:
+    return asdict(bare_response(load))
+
+
+def target_block(case: Case) -> dict:
+    block = {"peak_acceleration_m_s2": case.target_peak_m_s2, "duration_s": case.duration_s,
+             "peak_method": peak_method(case)}
+    if case.tables is not None and case.tables.target.peak_fractile is not None:
+        block["peak_fractile"] = case.tables.target.peak_fractile
+    if case.target_return_period_years is not None:
+        block["return_period_years"] = case.target_return_period_years
+    return block
+
+
+def across_block(case: Case) -> dict:
+    """``direction_of_response`` and the ``across_wind`` block of a wind case."""
+    if case.across_wind is None:
+        return {}
+    return {"direction_of_response": case.direction_of_response,
+            "across_wind": case.across_wind}
+
+
+def vortex_keys(case: Case, period: float) -> dict:
+    """Top speed, reduced velocity, v_crit, lock-in flag and C'_L of one return period."""
+    block = case.across_wind
+    if not block:
+        return {}
+    row = next(r for r in block["by_return_period"] if r["return_period_years"] == period)
+    return {"top_mean_speed_m_s": row["top_mean_speed_m_s"],
+            "reduced_velocity": row["reduced_velocity"],
+            "critical_speed_m_s": row["critical_speed_m_s"],
+            "lock_in_possible": row["lock_in_possible"],
+            "rms_lift_coefficient": block["rms_lift_coefficient"]}
+
+
+def by_return_period(case: Case, design: TmdDesign | None) -> list[dict]:
+    """Bare and damped responses for every return period of a wind case."""
+    rows = []
+    for wind_load in case.wind_loads:
+        with about(load_name(case, wind_load)):
+            rows.append(_return_period_row(case, design, wind_load))
+    return rows
+
+
+def _return_period_row(case: Case, design: TmdDesign | None, wind_load: WindLoad) -> dict:
+    """One return period's bare and damped responses."""
+    load = loaded_mode_of(case, wind_load)
+    row = {"return_period_years": wind_load.return_period_years,
+           "mean_speed_m_s": wind_load.mean_speed_m_s,
+           "aerodynamic_damping_ratio": wind_load.aerodynamic_damping_ratio,
+           **vortex_keys(case, wind_load.return_period_years),
+           "bare": asdict(bare_response(load))}
+    if design is not None:
+        d = evaluate_tmd(load, design.damper, case.target_peak_m_s2
+                         if wind_load.return_period_years == case.target_return_period_years
+                         else None)
+        row["design"] = {key: getattr(d, key) for key in (
+            "sigma_acceleration_m_s2", "peak_acceleration_m_s2", "sigma_stroke_m",
+            "peak_stroke_m", "peak_damper_force_n", "effective_damping_ratio")}
+        if case.damper.max_stroke_m is not None:  # checked at every return period
+            row["design"]["stroke_within_limit"] = meets_target(d.peak_stroke_m,
+                                                                case.damper.max_stroke_m)
+    return row
+
+
+def stroke_cases_of(case: Case) -> tuple[LoadedMode, ...]:
+    """Loads besides the design one under which the stroke limit constrains the tuning.
+
+    Parameters
+    ----------
+    case : Case
+
+    Returns
+    -------
+    tuple of LoadedMode
+        The wind load of ``[damper] stroke_return_period_years`` when it is
+        given and differs from the target's return period; else empty.
+    """
+    period = case.damper.stroke_return_period_years
+    if period is None or period == case.target_return_period_years:
+        return ()
+    return tuple(loaded_mode_of(case, w) for w in case.wind_loads
+                 if w.return_period_years == period)
+
+
+def extreme_checks(case: Case, design: TmdDesign, rows: list[dict] | None,
+                   subject: str = "the design") -> dict:
+    """The ``end_stops`` block, and a warning per return period whose stroke exceeds the limit.
+
+    Parameters
+    ----------
+    case : Case
+    design : TmdDesign
+    rows : list of dict or None
+        The ``by_return_period`` rows (None for a force-spectrum case).
+    subject : str
+        Which design it is, in the warnings.
+
+    Returns
+    -------
+    dict
+        ``{"end_stops": {...}}`` (see :func:`tmd.endstops.end_stop_block`).
+    """
+    if case.wind_loads:
+        loads = [(w.return_period_years, loaded_mode_of(case, w)) for w in case.wind_loads]
+    else:
+        loads = [(None, loaded_mode_of(case))]
+    block = end_stop_block(loads, design.damper, case.damper.max_stroke_m)
+    if rows and case.damper.max_stroke_m is not None:
+        constrained = tuple(p for p in (case.target_return_period_years,
+                                        case.damper.stroke_return_period_years) if p is not None)
+        for message in stroke_limit_messages(rows, block, case.damper.max_stroke_m, constrained,
+                                             subject):
+            warnings.warn(message, StrokeLimitWarning, stacklevel=2)
+    return {"end_stops": block}
