@@ -12,7 +12,11 @@ A cross spectrum is any object with
 * ``size``: the number of modes n,
 * ``__call__(frequency_hz) -> array`` of shape ``frequency_hz.shape + (n, n)``,
   complex, zero outside the support,
-* ``f_min_hz``, ``f_max_hz``: the support (0 and ``inf`` are allowed).
+* ``f_min_hz``, ``f_max_hz``: the support (0 and ``inf`` are allowed),
+
+and optionally ``breakpoints_hz``: frequencies where an entry may not be
+smooth (a table's rows). The engine makes the sharp ones panel edges of its
+grid, as the one-mode engine does (:func:`tmd.modal_response.load_breakpoints`).
 
 Where no cross-spectrum is given the modal forces are taken as uncorrelated
 (:class:`UncorrelatedForces`), an assumption a result must state: torsional
@@ -77,6 +81,13 @@ class UncorrelatedForces:
     def f_max_hz(self) -> float:
         """Highest frequency of any spectrum's support [Hz]."""
         return float(max(s.f_max_hz for s in self.spectra))
+
+    @property
+    def breakpoints_hz(self) -> tuple[float, ...]:
+        """Every spectrum's breakpoints, merged and sorted [Hz]."""
+        points = sorted({float(f) for s in self.spectra
+                         for f in getattr(s, "breakpoints_hz", ())})
+        return tuple(points)
 
     def diagonal(self, frequency_hz: np.ndarray) -> np.ndarray:
         """The diagonal S_F,ii(f), shape ``frequency_hz.shape + (n,)`` [N^2/Hz].
@@ -177,6 +188,11 @@ class TabulatedCrossSpectrum:
     def f_max_hz(self) -> float:
         """Last tabulated frequency [Hz]."""
         return float(self.frequency_hz[-1])
+
+    @property
+    def breakpoints_hz(self) -> tuple[float, ...]:
+        """The table's rows: every entry is interpolated between them [Hz]."""
+        return tuple(self.frequency_hz.tolist())
 
     def __call__(self, frequency_hz):
         """The matrix S_F(f), shape ``frequency_hz.shape + (n, n)``, complex [N^2/Hz].

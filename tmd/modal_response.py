@@ -52,10 +52,12 @@ import numpy as np
 
 from tmd.cross_spectra import CrossSpectrum, UncorrelatedForces
 from tmd.dampers.absorber import Absorbers
-from tmd.grid import NODES_PER_POLE, pole_grid
+from tmd.grid import NODES_PER_POLE, pole_grid, sharp_breakpoints
 from tmd.response import NoFiniteResponse
+from tmd.response import load_breakpoints as one_mode_breakpoints
 
 TWO_PI = 2.0 * np.pi
+_BREAKPOINTS: dict[int, tuple[object, np.ndarray]] = {}
 
 
 @dataclass(frozen=True)
@@ -339,6 +341,7 @@ def modal_response(frequency_hz, generalised_mass, damping_ratio, absorbers: Abs
     poles = closed_loop_poles(frequency_hz, generalised_mass, damping_ratio, absorbers, phi)
     centre, width = _resonances(poles)
     grid, weight = pole_grid(centre, width, load.f_min_hz, load.f_max_hz,
+                             breakpoints_hz=load_breakpoints(load),
                              nodes_per_pole=nodes_per_pole)
     batch = grid.shape[:-1]
     ext = extended_transfer(
@@ -374,6 +377,45 @@ def modal_response(frequency_hz, generalised_mass, damping_ratio, absorbers: Abs
             moments.append(m)
     share0, share2 = _top_decade(grid, weight, hs, hc, moments, load.f_max_hz)
     return OutputMoments(*moments, share0, share2, outputs.names)
+
+
+def load_breakpoints(load: CrossSpectrum) -> np.ndarray:
+    """Where the load bends sharply: panel edges of the grid [Hz].
+
+    Parameters
+    ----------
+    load : CrossSpectrum
+        Modal force cross-spectral matrix, with optional ``breakpoints_hz``.
+
+    Returns
+    -------
+    array
+        Sorted. For uncorrelated forces, every spectrum's sharp rows
+        (:func:`tmd.response.load_breakpoints`, as in the one-mode engine);
+        otherwise the rows where any auto-spectrum's log-log slope changes
+        sharply (:func:`tmd.grid.sharp_breakpoints`). The cross-spectra are
+        interpolated as fractions of the auto-spectra
+        (:class:`tmd.cross_spectra.TabulatedCrossSpectrum`), so they bend
+        there too. Empty for a smooth load.
+    """
+    cached = _BREAKPOINTS.get(id(load))
+    if cached is not None and cached[0] is load:
+        return cached[1]
+    if isinstance(load, UncorrelatedForces):
+        cuts = [one_mode_breakpoints(s) for s in load.spectra]
+    else:
+        points = np.asarray(getattr(load, "breakpoints_hz", ()), float)
+        cuts = []
+        if points.size >= 3:
+            diagonal = np.real(np.diagonal(load(points), axis1=-2, axis2=-1))
+            cuts = [sharp_breakpoints(points, diagonal[:, i]) for i in range(load.size)]
+    sharp = np.unique(np.concatenate(cuts)) if cuts else np.empty(0)
+    # Loads are immutable: remember the answer (the entry holds the load, so
+    # its id cannot be reused while cached).
+    if len(_BREAKPOINTS) >= 64:
+        _BREAKPOINTS.clear()
+    _BREAKPOINTS[id(load)] = (load, sharp)
+    return sharp
 
 
 def _broadcast(absorbers: Absorbers, batch) -> Absorbers:
