@@ -49,6 +49,16 @@ Share = Annotated[float, Field(gt=0, le=1, allow_inf_nan=False)]
 CROSS_HEADER = ("frequency_hz", "co_n2_per_hz", "quad_n2_per_hz")
 # Mass shares must add up to 1 within this (values are typed to a few digits).
 SHARE_SUM_TOL = 1e-6
+# Sector probabilities may add up to at most 1 plus this (typed to a few digits).
+PROBABILITY_SUM_TOL = 1e-3
+SECTOR_RULE = (
+    "Sector speeds: a sector with a probability p is evaluated at the speed of return period "
+    "p T (its share p of the site's extreme winds comes from that sector, so that speed is "
+    "exceeded from the sector once in T years on average; EN 1991-1-4 c_prob with Poisson "
+    "arrivals); a sector without one at the site's T-year speed times its c_dir. The two are "
+    "never multiplied. Exceedance rates of different sectors add: the governing sector's "
+    "T-year value is exceeded from some direction somewhat more often than once in T years "
+    "when other sectors come close to it.")
 UNCORRELATED_NOTE = (
     "Modal force tables were given without cross-spectra: the modal forces are taken as "
     "uncorrelated. Torsional and across-wind loads are in fact often correlated with each "
@@ -122,6 +132,7 @@ class DirectionEntry(_Table):
     depth_m: Positive
     drag_coefficient: Positive
     c_dir: Annotated[float, Field(gt=0, le=1, allow_inf_nan=False)] = 1.0
+    probability: Share | None = None
 
 
 class BuildingTargetTable(_Table):
@@ -468,21 +479,26 @@ def _wind_case(path: Path, table: BuildingCaseTable, model: BuildingModel, commo
         raise CaseError(f"{path}: [target] return_period_years is required with [wind]")
     periods = sorted(set(w.return_periods_years) | {table.target.return_period_years})
     loads_by_period = {}
+    _check_sector_probabilities(path, table.wind_directions)
     directions = []
     for d in table.wind_directions:
         name = d.name or f"{d.direction_deg:g} deg"
-        directions.append({"name": name, "direction_deg": d.direction_deg, "c_dir": d.c_dir})
+        directions.append({"name": name, "direction_deg": d.direction_deg, "c_dir": d.c_dir,
+                           "probability": d.probability,
+                           "speed_rule": "c_dir" if d.probability is None
+                           else "sector probability"})
     for period in periods:
         loads = []
         for k, d in enumerate(table.wind_directions):
             site = _site(path, w, d.c_dir)
+            sector_period = period if d.probability is None else d.probability * period
             travel = wind_travel_vector(d.direction_deg, table.plan.orientation_deg)
             try:
                 spectrum = strip_cross_spectrum(
                     site, model.modes, height_m=model.plan.height_m, breadth_m=d.breadth_m,
                     depth_m=d.depth_m, drag_coefficient=d.drag_coefficient, travel=travel,
-                    return_period_years=period, spectrum=w.spectrum, coherence=w.coherence,
-                    n_strips=w.n_strips)
+                    return_period_years=sector_period, spectrum=w.spectrum,
+                    coherence=w.coherence, n_strips=w.n_strips)
             except ValueError as exc:
                 raise CaseError(f"{path}: [[wind_directions]] {k + 1}: {exc}") from None
             loads.append(BuildingLoad(directions[k]["name"], spectrum, model.damping_ratio))
@@ -490,8 +506,30 @@ def _wind_case(path: Path, table: BuildingCaseTable, model: BuildingModel, commo
     return BuildingCase(design_loads=loads_by_period[table.target.return_period_years],
                         loads_by_period=loads_by_period,
                         target_return_period_years=table.target.return_period_years,
-                        notes=(STRIP_NOTE,), directions=tuple(directions),
+                        notes=(STRIP_NOTE,) + ((SECTOR_RULE,) if any(
+                            d.probability is not None for d in table.wind_directions) else ()),
+                        directions=tuple(directions),
                         input_files=(path.resolve(),), **common)
+
+
+def _check_sector_probabilities(path: Path, directions: list[DirectionEntry]) -> None:
+    """A directional result needs a probability for every sector or for none, adding up to
+    at most 1, and never together with a c_dir below 1 (that would count the direction
+    twice)."""
+    given = [d.probability is not None for d in directions]
+    if any(given) and not all(given):
+        missing = given.index(False) + 1
+        raise CaseError(f"{path}: [[wind_directions]] {missing} probability: give a sector "
+                        "probability for every wind direction or for none")
+    for k, d in enumerate(directions):
+        if d.probability is not None and d.c_dir != 1.0:
+            raise CaseError(f"{path}: [[wind_directions]] {k + 1} c_dir = {d.c_dir!r}: with a "
+                            "sector probability, c_dir must be left at 1 (use one or the other "
+                            "for a sector's speed, never both)")
+    total = sum(d.probability for d in directions if d.probability is not None)
+    if any(given) and total > 1.0 + PROBABILITY_SUM_TOL:
+        raise CaseError(f"{path}: [[wind_directions]] probability: the sector probabilities "
+                        f"add up to {total:g}; they must add up to at most 1")
 
 
 def _site(path: Path, w: WindTable, c_dir: float) -> Site:
