@@ -207,25 +207,6 @@ class BuildingCase:
     input_files: tuple[Path, ...] = ()
 
 
-def is_building_case(path: str | Path) -> bool:
-    """True when the file is readable TOML with ``[[modes]]`` (a whole-building case).
-
-    Parameters
-    ----------
-    path : str or Path
-        The case file.
-
-    Returns
-    -------
-    bool
-    """
-    try:
-        with open(path, "rb") as handle:
-            return "modes" in tomllib.load(handle)
-    except (OSError, tomllib.TOMLDecodeError):
-        return False
-
-
 def load_building_case(path: str | Path) -> BuildingCase:
     """Read and validate a whole-building case.
 

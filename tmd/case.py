@@ -344,6 +344,28 @@ class Case:
         return None
 
 
+def is_building_case(path: str | Path) -> bool:
+    """True when the file is readable TOML with ``[[modes]]`` (a whole-building case).
+
+    It lives here rather than in :mod:`tmd.building_case` so that the CLI can
+    ask it without importing the building stack (and with it scipy).
+
+    Parameters
+    ----------
+    path : str or Path
+        The case file.
+
+    Returns
+    -------
+    bool
+    """
+    try:
+        with open(path, "rb") as handle:
+            return "modes" in tomllib.load(handle)
+    except (OSError, tomllib.TOMLDecodeError):
+        return False
+
+
 def read_case(path: str | Path) -> Case:
     """Read and validate a case file.
 

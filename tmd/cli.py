@@ -22,7 +22,7 @@ from rich.markup import escape
 
 from tmd import terminal
 from tmd._version import __version__
-from tmd.case import CaseError, read_case
+from tmd.case import CaseError, is_building_case, read_case
 from tmd.dampers.tuned_mass import TunedMassDamper
 from tmd.outputs import OutputFolder, to_json
 from tmd.rules import FrequencyRatio, InputError, Ratio, require
@@ -150,8 +150,6 @@ def design(case: CaseArg,
            out: Annotated[Path | None, typer.Option(
                help="Folder for results.json (default: out/<case file stem>).")] = None):
     """Size a TMD for the case and write DIR/results.json."""
-    from tmd.building_case import is_building_case  # deferred: it loads the building stack
-
     if is_building_case(case):
         _design_building(case, out)
         return
@@ -264,7 +262,8 @@ def _damper_from_options(mass_ratio, frequency_ratio, damping_ratio,
 def wind(case: CaseArg,
          json_output: Annotated[bool, typer.Option("--json", help="Print JSON only.")] = False):
     """Wind at the reference height and the EN 1991-1-4 Annex B check, per return period."""
-    result = _job("wind_job")(read_case(case))
+    c = read_case(case)  # before the job's import: a bad case exits without loading scipy
+    result = _job("wind_job")(c)
     if json_output:
         typer.echo(to_json(result), nl=False)
         return
