@@ -421,7 +421,8 @@ def _wind_case(path: Path, table: CaseTable, mode: Mode, common: dict) -> Case:
                                    coherence=w.coherence, n_strips=w.n_strips,
                                    aerodynamic_damping=w.aerodynamic_damping,
                                    direction_of_response=w.direction_of_response,
-                                   air_density_kg_m3=w.air_density_kg_m3)
+                                   air_density_kg_m3=w.air_density_kg_m3,
+                                   reference_period_years=table.target.return_period_years)
     except ValueError as exc:
         raise CaseError(f"{path}: [wind]/[building]: {exc}") from None
     _check_damping(path, table, mode, site, building, periods)

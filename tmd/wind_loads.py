@@ -12,7 +12,13 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from tmd.loads import Building, aerodynamic_damping_ratio, modal_force_spectrum, reference_height
+from tmd.loads import (
+    Building,
+    aerodynamic_damping_ratio,
+    modal_force_spectra,
+    modal_force_spectrum,
+    reference_height,
+)
 from tmd.spectra import ForceSpectrum
 from tmd.structure import Mode
 from tmd.wind import Site
@@ -47,7 +53,8 @@ class WindLoad:
 def compute_wind_loads(site: Site, building: Building, mode: Mode, periods_years, *,
                        spectrum: str, coherence: str, n_strips: int,
                        aerodynamic_damping: bool, direction_of_response: str = "along",
-                       air_density_kg_m3: float | None = None) -> tuple[WindLoad, ...]:
+                       air_density_kg_m3: float | None = None,
+                       reference_period_years: float | None = None) -> tuple[WindLoad, ...]:
     """The wind load of every return period, in the order given.
 
     Parameters
@@ -74,6 +81,10 @@ def compute_wind_loads(site: Site, building: Building, mode: Mode, periods_years
         the along-wind strip model.
     air_density_kg_m3 : float, optional
         Air density rho [kg/m^3] of the across-wind spectrum.
+    reference_period_years : float, optional
+        The period whose along-wind table is computed directly (the design
+        period; default the first), the others being scaled from it where
+        that is exact (see Notes).
 
     Returns
     -------
@@ -83,15 +94,37 @@ def compute_wind_loads(site: Site, building: Building, mode: Mode, periods_years
     ------
     ValueError
         When the strip model cannot be evaluated for these inputs.
+
+    Notes
+    -----
+    On an EN 1991-1-4 site (:class:`tmd.wind.Site`, either route) every mean
+    speed and sigma_u scale with the return period by one factor c while the
+    length scales do not, so the along-wind spectrum is self-similar,
+    S_F(f; T) = c^3 S_F(f / c; T_ref), and one strip computation serves every
+    period (:func:`tmd.loads.modal_force_spectra`): exact at every table node,
+    but the other periods' nodes are the reference grid shifted by c (the
+    frequency range shifts with them, by less than one table step at each
+    end). A Deaves-Harris site (its gradient height grows with the friction
+    velocity) or a profile table is not shown to be self-similar, and the
+    across-wind spectrum has its own model: those are computed period by period.
     """
     z_s = float(reference_height(site, building))
+    periods_years = [float(t) for t in periods_years]
     across = direction_of_response == "across"
+    scaled = {}
+    if not across and type(site) is Site and len(periods_years) > 1:
+        reference = (reference_period_years if reference_period_years in periods_years
+                     else periods_years[0])
+        scaled = dict(zip(periods_years, modal_force_spectra(
+            site, building, periods_years, reference_period_years=reference,
+            spectrum=spectrum, coherence=coherence, n_strips=n_strips), strict=True))
     loads = []
     for period in periods_years:
         top = float(site.mean_speed(building.height_m, period))
         force = (across_wind_spectrum(building, top, air_density_kg_m3, period) if across else
-                 modal_force_spectrum(site, building, period, spectrum=spectrum,
-                                      coherence=coherence, n_strips=n_strips))
+                 scaled[period] if period in scaled else modal_force_spectrum(
+                     site, building, period, spectrum=spectrum, coherence=coherence,
+                     n_strips=n_strips))
         aero = (float(aerodynamic_damping_ratio(site, building, mode.modal_mass_kg,
                                                 mode.frequency_hz, period))
                 if aerodynamic_damping else 0.0)
