@@ -22,6 +22,13 @@ from typing import Annotated, Any, Literal
 from pydantic import BaseModel, ConfigDict, Field, ValidationError, model_validator
 
 from tmd import defaults
+from tmd.case_options import (
+    LiquidColumnOptionsTable,
+    PendulumOptionsTable,
+    SloshingTankOptionsTable,
+    TmdBankOptionsTable,
+    ViscousOptionsTable,
+)
 from tmd.loads import (
     COHERENCE_MODELS,
     Building,
@@ -187,51 +194,12 @@ class RobustnessTable(_Table):
     probabilistic: ProbabilisticTable | None = None
 
 
-# Storey-drift damper near the top of a tall tower: its deformation per unit
-# modal displacement is about 0.03 (the issue's figure for a realistic storey
-# drift or outrigger amplification); the idealised top-to-ground damper (1.0)
-# would understate the damper constant and force some 1000x and 30x.
-DEFAULT_VISCOUS_DEFORMATION = 0.03
-
-
-class ViscousOptionsTable(_Table):
-    damper_count: Annotated[int, Field(ge=1, le=10_000, strict=True)] = 1
-    deformation_per_modal_displacement: _capped(10.0) | None = None
-    storey_drift_per_modal_displacement: _capped(1.0) | None = None
-    drift_amplification: _capped(10.0) | None = None
-    force_capacity_n: _capped(1e9) | None = None
-    stroke_capacity_m: _capped(10.0) | None = None
-
-    @model_validator(mode="after")
-    def _one_installation(self):
-        drift = (self.storey_drift_per_modal_displacement, self.drift_amplification)
-        if self.deformation_per_modal_displacement is not None and any(
-                v is not None for v in drift):
-            raise ValueError("give deformation_per_modal_displacement, or "
-                             "storey_drift_per_modal_displacement with drift_amplification, "
-                             "not both")
-        if (drift[0] is None) != (drift[1] is None):
-            raise ValueError("storey_drift_per_modal_displacement and drift_amplification go "
-                             "together (deformation = their product)")
-        return self
-
-    @property
-    def deformation(self) -> float:
-        """phi_d [-]: given, or storey drift times amplification, or the stated default."""
-        if self.deformation_per_modal_displacement is not None:
-            return self.deformation_per_modal_displacement
-        if self.storey_drift_per_modal_displacement is not None:
-            return self.storey_drift_per_modal_displacement * self.drift_amplification
-        return DEFAULT_VISCOUS_DEFORMATION
-
-
-class PendulumOptionsTable(_Table):
-    stages: Annotated[int, Field(ge=1, le=10, strict=True)] = 1
-
-
 class OptionsTable(_Table):
     viscous: ViscousOptionsTable = ViscousOptionsTable()
     pendulum: PendulumOptionsTable = PendulumOptionsTable()
+    tmd_bank: TmdBankOptionsTable = TmdBankOptionsTable()
+    liquid_column: LiquidColumnOptionsTable = LiquidColumnOptionsTable()
+    sloshing_tank: SloshingTankOptionsTable = SloshingTankOptionsTable()
     enabled: unique_list(Literal[OPTION_NAMES], MAX_OPTION_NAMES) | None = None  # type: ignore[valid-type]
     frequency_band: Band | None = None
 
@@ -587,7 +555,9 @@ _TABLES = {
     ("damper",): DamperTable, ("wind",): WindTable, ("building",): BuildingTable,
     ("robustness",): RobustnessTable, ("robustness", "probabilistic"): ProbabilisticTable,
     ("options",): OptionsTable, ("options", "viscous"): ViscousOptionsTable,
-    ("options", "pendulum"): PendulumOptionsTable,
+    ("options", "pendulum"): PendulumOptionsTable, ("options", "tmd_bank"): TmdBankOptionsTable,
+    ("options", "liquid_column"): LiquidColumnOptionsTable,
+    ("options", "sloshing_tank"): SloshingTankOptionsTable,
 }
 
 

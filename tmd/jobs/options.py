@@ -5,7 +5,6 @@ from __future__ import annotations
 
 from tmd.case import Case, OptionsTable
 from tmd.compare import OptionSettings, compare_options
-from tmd.dampers.pendulum import PendulumSettings
 from tmd.defaults import FREQUENCY_BAND
 from tmd.jobs.design import size_damper
 from tmd.jobs.shared import (
@@ -17,7 +16,6 @@ from tmd.jobs.shared import (
     with_notes,
 )
 from tmd.notes import about
-from tmd.sizing.viscous import ViscousSettings
 
 
 def option_settings_of(case: Case):
@@ -30,17 +28,14 @@ def option_settings_of(case: Case):
     Returns
     -------
     tmd.compare.OptionSettings
-        The viscous installation (default deformation per modal displacement
-        0.03, a storey-drift damper, not the idealised top-to-ground one) and
-        the pendulum stages; the other options keep their dataclass defaults.
+        Every option's settings dataclass (:mod:`tmd.case_options`); the
+        viscous installation's default is a storey-drift damper (deformation
+        per modal displacement 0.03), not the idealised top-to-ground one.
     """
-    opts = case.tables.options
-    if opts is None:
-        opts = OptionsTable()
-    return OptionSettings(
-        pendulum=PendulumSettings(opts.pendulum.stages),
-        viscous=ViscousSettings(opts.viscous.deformation, opts.viscous.damper_count,
-                                opts.viscous.force_capacity_n, opts.viscous.stroke_capacity_m))
+    opts = case.tables.options if case.tables.options is not None else OptionsTable()
+    return OptionSettings(pendulum=opts.pendulum.settings(), bank=opts.tmd_bank.settings(),
+                          column=opts.liquid_column.settings(),
+                          tank=opts.sloshing_tank.settings(), viscous=opts.viscous.settings())
 
 
 def compare_job(case: Case) -> dict:
