@@ -48,6 +48,11 @@ def root_coherence(frequency_hz, vertical_separation_m, lateral_separation_m, me
     Notes
     -----
     coh = exp(-f sqrt((C_z dz)^2 + (C_y dy)^2) / U).
+
+    References
+    ----------
+    Davenport, A. G. (1961), Proc. ICE 19, 449-472; decay constants as quoted
+    in Simiu & Scanlan (1996), section 2.3 (from memory).
     """
     f = np.asarray(frequency_hz, dtype=float)
     distance = np.hypot(decay_vertical * np.asarray(vertical_separation_m, dtype=float),
@@ -61,9 +66,20 @@ def cross_spectrum(psd_i, psd_j, coherence):
     Parameters
     ----------
     psd_i, psd_j : array
-        One-sided point spectra [(m/s)^2/Hz].
+        One-sided point spectra of the along-wind turbulence at the two points
+        [(m/s)^2/Hz].
     coherence : array
-        Root-coherence [-].
+        Root-coherence between the points [-], e.g. from :func:`root_coherence`.
+
+    Returns
+    -------
+    numpy.ndarray
+        Co-spectrum S_ij(f) [(m/s)^2/Hz], broadcast over the arguments.
+
+    Notes
+    -----
+    S_ij = sqrt(S_i S_j) coh_ij; the quadrature spectrum is neglected, as usual
+    for the along-wind component.
     """
     return np.sqrt(np.asarray(psd_i) * np.asarray(psd_j)) * np.asarray(coherence)
 
@@ -83,6 +99,16 @@ def area_admittance_sq(frequency_hz, area_m2, mean_speed):
     Notes
     -----
     chi^2(f) = 1 / [1 + (2 f sqrt(A) / U)^(4/3)]^2. Form from memory.
+
+    Returns
+    -------
+    numpy.ndarray
+        chi^2(f) [-], in (0, 1], of the shape of ``frequency_hz``.
+
+    References
+    ----------
+    Vickery, B. J. (1965), NPL Aero Report 1143, as reproduced in Holmes,
+    Wind Loading of Structures (form from memory).
     """
     x = 2.0 * np.asarray(frequency_hz, dtype=float) * np.sqrt(area_m2) / mean_speed
     return 1.0 / (1.0 + x ** (4.0 / 3.0)) ** 2
@@ -94,7 +120,13 @@ def averaged_exponential(eta):
     Parameters
     ----------
     eta : array
-        eta >= 0 [-].
+        eta >= 0 [-], the decay exponent over the whole length: for EN's R_h,
+        eta = 4.6 h f_L / L(z_s); for a strip, f C dz / (2 U).
+
+    Returns
+    -------
+    numpy.ndarray
+        R(eta) [-], in (0, 1], of the shape of ``eta``.
 
     Notes
     -----
@@ -102,6 +134,10 @@ def averaged_exponential(eta):
     1991-1-4 eq. B.7 (R_h, R_b); here it is also the exact self-coherence of a
     strip of length dz, with eta = f C dz / (2 U). A series is used below
     eta = 1e-3, where the closed form loses digits to cancellation.
+
+    References
+    ----------
+    EN 1991-1-4:2005, Annex B, eq. B.7.
     """
     e = np.asarray(eta, dtype=float)
     small = e < 1e-3

@@ -51,6 +51,10 @@ def terrain_factor(roughness_length):
     Notes
     -----
     k_r = 0.19 (z0 / z0,II)^0.07 with z0,II = 0.05 m.
+
+    References
+    ----------
+    EN 1991-1-4:2005+A1:2010, 4.3.2, eq. 4.5.
     """
     return 0.19 * (np.asarray(roughness_length, dtype=float) / REFERENCE_ROUGHNESS_LENGTH_M) ** 0.07
 
@@ -61,9 +65,15 @@ def log_law(height, roughness_length, minimum_height):
     Parameters
     ----------
     height : array
-        z [m].
+        z, height above ground [m].
     roughness_length, minimum_height : float
-        z0 and z_min [m].
+        z0, the terrain's roughness length, and z_min, the height below which
+        the profile is held constant [m] (EN 1991-1-4 Table 4.1).
+
+    Returns
+    -------
+    numpy.ndarray
+        ln(max(z, z_min) / z0) [-], of the shape of ``height``.
     """
     z = np.maximum(np.asarray(height, dtype=float), minimum_height)
     return np.log(z / roughness_length)
@@ -75,13 +85,24 @@ def roughness_factor(height, roughness_length, minimum_height):
     Parameters
     ----------
     height : array
-        z [m], at most z_max = 200 m.
+        z, height above ground [m], at most z_max = 200 m.
     roughness_length, minimum_height : float
-        z0 and z_min [m] (Table 4.1).
+        z0, the terrain's roughness length, and z_min, its minimum height [m]
+        (Table 4.1).
+
+    Returns
+    -------
+    numpy.ndarray
+        c_r(z) [-], the ratio of the mean speed at z to the basic wind velocity
+        before the orography and probability factors, of the shape of ``height``.
 
     Notes
     -----
     c_r(z) = k_r ln(max(z, z_min) / z0).
+
+    References
+    ----------
+    EN 1991-1-4:2005+A1:2010, 4.3.2, eq. 4.4.
     """
     return terrain_factor(roughness_length) * log_law(height, roughness_length, minimum_height)
 
@@ -92,14 +113,24 @@ def turbulence_length_scale(height, roughness_length, minimum_height):
     Parameters
     ----------
     height : array
-        z [m].
+        z, height above ground [m].
     roughness_length, minimum_height : float
-        z0 and z_min [m].
+        z0, the terrain's roughness length, and z_min, its minimum height [m].
+
+    Returns
+    -------
+    numpy.ndarray
+        L(z) [m], the integral length scale of the along-wind gusts, of the
+        shape of ``height``.
 
     Notes
     -----
     L(z) = L_t (max(z, z_min) / z_t)^alpha with L_t = 300 m, z_t = 200 m and
     alpha = 0.67 + 0.05 ln(z0), z0 in m.
+
+    References
+    ----------
+    EN 1991-1-4:2005+A1:2010, Annex B, B.1(1), eq. B.1.
     """
     z = np.maximum(np.asarray(height, dtype=float), minimum_height)
     alpha = 0.67 + 0.05 * math.log(roughness_length)
@@ -130,6 +161,10 @@ def probability_factor(return_period_years, shape_parameter=0.2, exponent=0.5):
     infinite). At T = 50 years this gives c_prob = 1.0006 rather than exactly 1,
     because the standard's denominator is written for p = 0.02 (T = 49.5 years
     in this convention).
+
+    References
+    ----------
+    EN 1991-1-4:2005+A1:2010, 4.2(2)P Note 4, eq. 4.2.
     """
     t = np.asarray(return_period_years, dtype=float)
     if np.any(~np.isfinite(t)) or np.any(t <= 0):
@@ -188,6 +223,12 @@ class Site:
     air_density_kg_m3 : float
         rho [kg/m^3], default 1.25 (EN 1991-1-4 4.5(1)).
 
+    Raises
+    ------
+    ValueError
+        If the terrain is not a category, both or neither route is given, or a
+        value is out of range (the message names the field and what is allowed).
+
     Notes
     -----
     EN route: v_m(z) = c_prob(T) c_r(z) c_o v_b, I_v(z) = k_I / (c_o ln(z/z0)),
@@ -199,6 +240,10 @@ class Site:
     law through the reference point, v_m(z) = v_ref ln(z/z0) / ln(z_ref/z0),
     so I_v(z) = I_ref ln(z_ref/z0) / ln(z/z0) (z below z_min taken as z_min).
     Other return periods scale the speed by c_prob(T) / c_prob(T_ref).
+
+    References
+    ----------
+    EN 1991-1-4:2005+A1:2010, 4.2, 4.3 and 4.4, eq. 4.3 to 4.7.
     """
 
     terrain: str
@@ -280,7 +325,24 @@ class Site:
     def speed_factor(self, return_period_years=50.0):
         """Ratio of the mean speed for return period T to the stated speed [-].
 
-        c_prob(T) on the EN route; c_prob(T) / c_prob(T_ref) on the direct route.
+        Parameters
+        ----------
+        return_period_years : float or array
+            T, return period of the mean wind speed [years].
+
+        Returns
+        -------
+        float or numpy.ndarray
+            v_m(z; T) / v_m(z; T_stated) [-], the same at every height.
+
+        Notes
+        -----
+        c_prob(T) on the EN route; c_prob(T) / c_prob(T_ref) on the direct route,
+        with c_prob of :func:`probability_factor`.
+
+        References
+        ----------
+        EN 1991-1-4:2005+A1:2010, 4.2(2)P Note 4, eq. 4.2.
         """
         c = probability_factor(
             return_period_years, self.probability_shape_parameter, self.probability_exponent
@@ -304,7 +366,27 @@ class Site:
         height_m : float or array
             z [m], 0 < z <= 200.
         return_period_years : float or array
-            T [years]; broadcast against ``height_m``.
+            T, return period of the mean wind speed [years]; broadcast against
+            ``height_m``.
+
+        Returns
+        -------
+        float or numpy.ndarray
+            v_m(z; T) [m/s], broadcast over ``height_m`` and ``return_period_years``.
+
+        Raises
+        ------
+        ValueError
+            If a height lies outside 0 < z <= 200 m.
+
+        Notes
+        -----
+        EN route: v_m = c_prob(T) c_r(z) c_o v_b. Direct route:
+        v_m = c_prob(T)/c_prob(T_ref) v_ref ln(z/z0) / ln(z_ref/z0).
+
+        References
+        ----------
+        EN 1991-1-4:2005+A1:2010, 4.3.1, eq. 4.3.
         """
         z = _check_heights(height_m)
         factor = self.speed_factor(return_period_years)
@@ -318,6 +400,25 @@ class Site:
         """Turbulence intensity I_v(z) = sigma_u / v_m(z) [-] (EN 1991-1-4 eq. 4.7).
 
         Independent of the return period.
+
+        Parameters
+        ----------
+        height_m : float or array
+            z, height above ground [m], 0 < z <= 200.
+
+        Returns
+        -------
+        float or numpy.ndarray
+            I_v(z) [-], of the shape of ``height_m``.
+
+        Notes
+        -----
+        EN route: I_v = k_I / (c_o ln(max(z, z_min)/z0)). Direct route:
+        I_v = I_ref ln(z_ref/z0) / ln(max(z, z_min)/z0).
+
+        References
+        ----------
+        EN 1991-1-4:2005+A1:2010, 4.4, eq. 4.7.
         """
         z = _check_heights(height_m)
         if self.is_direct:
@@ -326,10 +427,24 @@ class Site:
         return self.turbulence_factor / (self.orography_factor * self._log(z))
 
     def sigma_u(self, return_period_years=50.0):
-        """Standard deviation of the along-wind turbulence sigma_u [m/s] (EN 1991-1-4 eq. 4.6).
+        """Return the standard deviation of the along-wind turbulence sigma_u [m/s].
 
         Constant over height: sigma_u = k_r v_b k_I c_prob(T) (EN route) or
         I_ref v_ref c_prob(T)/c_prob(T_ref) (direct route).
+
+        Parameters
+        ----------
+        return_period_years : float or array
+            T, return period of the mean wind speed [years].
+
+        Returns
+        -------
+        float or numpy.ndarray
+            sigma_u [m/s], of the shape of ``return_period_years``.
+
+        References
+        ----------
+        EN 1991-1-4:2005+A1:2010, 4.4, eq. 4.6.
         """
         factor = self.speed_factor(return_period_years)
         if self.is_direct:
@@ -337,6 +452,18 @@ class Site:
         return factor * self.terrain_factor * self.basic_speed_m_s * self.turbulence_factor
 
     def length_scale(self, height_m):
-        """Turbulence length scale L(z) [m] (EN 1991-1-4 eq. B.1)."""
+        """Turbulence length scale L(z) [m] (EN 1991-1-4 eq. B.1).
+
+        Parameters
+        ----------
+        height_m : float or array
+            z, height above ground [m], 0 < z <= 200.
+
+        Returns
+        -------
+        float or numpy.ndarray
+            L(z) [m], of the shape of ``height_m``; see
+            :func:`turbulence_length_scale`.
+        """
         z = _check_heights(height_m)
         return turbulence_length_scale(z, self.roughness_length_m, self.minimum_height_m)

@@ -197,7 +197,7 @@ class ProfileTable:
         return self._interp(self.turbulence_intensities, height_m)
 
     def sigma_u_at(self, height_m, return_period_years=50.0):
-        """Standard deviation of the along-wind turbulence sigma_u(z, T) = I_u v_m [m/s].
+        """Return the along-wind turbulence standard deviation sigma_u(z, T) = I_u v_m [m/s].
 
         Parameters
         ----------
