@@ -1,0 +1,1 @@
+"""Device models of the passive dampers: geometry, frequency laws, absorber equivalents."""

@@ -72,26 +72,66 @@ class Absorbers:
 
     @property
     def batch_shape(self) -> tuple[int, ...]:
+        """Shape of the batch of designs, the fields' shape less the absorber axis."""
         return self.mass_kg.shape[:-1]
 
     @property
     def count(self) -> int:
+        """Number of absorbers in each design (length of the last axis)."""
         return self.mass_kg.shape[-1]
 
     @classmethod
     def none(cls, batch_shape: tuple[int, ...] = ()) -> Absorbers:
-        """No absorber at all: the bare structure."""
+        """Return no absorber at all: the bare structure.
+
+        Parameters
+        ----------
+        batch_shape : tuple of int
+            Shape of the batch of (bare) designs; ``()`` for one.
+
+        Returns
+        -------
+        Absorbers
+            Every field of shape ``batch_shape + (0,)``.
+        """
         empty = np.zeros(batch_shape + (0,))
         return cls(empty, empty, empty, empty)
 
     @classmethod
     def tuned_masses(cls, mass_kg, frequency_hz, damping_ratio) -> Absorbers:
-        """Translational TMDs (coupling 1); arrays already carry the absorber axis."""
+        """Return translational TMDs (coupling 1).
+
+        Parameters
+        ----------
+        mass_kg : array
+            Mass of each TMD [kg], the last axis counting the absorbers.
+        frequency_hz : array
+            Each TMD's own natural frequency sqrt(k/m) / (2 pi) [Hz].
+        damping_ratio : array
+            Each TMD's damping ratio c / (2 m omega_d), referred to its own
+            frequency [-].
+
+        Returns
+        -------
+        Absorbers
+            The TMDs with coupling beta = 1, the arrays broadcast together.
+        """
         mass = np.asarray(mass_kg, dtype=float)
         return cls(mass, frequency_hz, damping_ratio, np.ones_like(mass))
 
     def take(self, index) -> Absorbers:
-        """The designs selected by ``index`` along the batch axes."""
+        """Return the designs selected by ``index`` along the batch axes.
+
+        Parameters
+        ----------
+        index : int, slice, tuple or array
+            A numpy index into the batch axes (the absorber axis is kept whole).
+
+        Returns
+        -------
+        Absorbers
+            The selected designs, each with all its absorbers.
+        """
         return Absorbers(self.mass_kg[index], self.frequency_hz[index],
                          self.damping_ratio[index], self.coupling[index])
 
@@ -103,13 +143,13 @@ def single_tmd(structure_frequency_hz, modal_mass_kg, mass_ratio, frequency_rati
     Parameters
     ----------
     structure_frequency_hz : float or array
-        f_s [Hz].
+        f_s, natural frequency of the structural mode [Hz].
     modal_mass_kg : float or array
-        M* [kg], mode shape = 1 at the damper.
+        M*, modal mass of that mode [kg], mode shape = 1 at the damper.
     mass_ratio : float or array
-        mu = m_d / M* [-].
+        mu = m_d / M* [-], the damper's mass over the modal mass.
     frequency_ratio : float or array
-        f_d / f_s [-].
+        f_d / f_s [-], the damper's own frequency over the structure's.
     damping_ratio : float or array
         zeta_d, referred to the damper's own frequency [-].
 

@@ -66,27 +66,102 @@ class ColumnSettings:
 
 
 def column_length_m(frequency_hz, gravity_m_s2: float = STANDARD_GRAVITY):
-    """Liquid length L [m] of a column of natural frequency f [Hz].
+    """Return the liquid length L [m] of a column of natural frequency f [Hz].
+
+    Parameters
+    ----------
+    frequency_hz : float or array
+        Natural frequency f_l of the liquid column's sloshing along its centre
+        line [Hz].
+    gravity_m_s2 : float
+        Acceleration of gravity g [m/s^2].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        L, total liquid length along the centre line [m].
 
     Notes
     -----
     omega_l = sqrt(2 g / L) (Sakai et al. 1989), so L = 2 g / (2 pi f)^2.
+
+    References
+    ----------
+    Sakai, F., Takaeda, S. and Tamaki, T. (1989), Proc. Int. Conf. on High-rise
+    Buildings, Nanjing, 926-931.
     """
     return 2.0 * gravity_m_s2 / (TWO_PI * np.asarray(frequency_hz, float)) ** 2
 
 
 def column_frequency_hz(length_m, gravity_m_s2: float = STANDARD_GRAVITY):
-    """Natural frequency sqrt(2 g / L) / (2 pi) [Hz] of a liquid length L [m]."""
+    """Return the natural frequency [Hz] of a column of liquid length L [m].
+
+    Parameters
+    ----------
+    length_m : float or array
+        L, total liquid length along the column's centre line [m].
+    gravity_m_s2 : float
+        Acceleration of gravity g [m/s^2].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        f_l [Hz].
+
+    Notes
+    -----
+    f_l = sqrt(2 g / L) / (2 pi), independent of the length ratio B / L.
+
+    References
+    ----------
+    Sakai, F., Takaeda, S. and Tamaki, T. (1989), Proc. Int. Conf. on High-rise
+    Buildings, Nanjing, 926-931.
+    """
     return np.sqrt(2.0 * gravity_m_s2 / np.asarray(length_m, float)) / TWO_PI
 
 
 def leg_height_m(length_m, length_ratio):
-    """Still liquid height in each vertical leg, (1 - alpha) L / 2 [m]."""
+    """Return the still liquid height in each vertical leg [m].
+
+    Parameters
+    ----------
+    length_m : float or array
+        L, total liquid length along the centre line [m].
+    length_ratio : float or array
+        alpha = B / L [-], horizontal over total liquid length.
+
+    Returns
+    -------
+    float or numpy.ndarray
+        h = (1 - alpha) L / 2 [m], the liquid above the horizontal part in
+        each of the two legs.
+    """
     return 0.5 * (1.0 - np.asarray(length_ratio, float)) * np.asarray(length_m, float)
 
 
 def column_damping_gain(head_loss_coefficient, length_m, frequency_hz):
-    """zeta_eq per unit rms liquid velocity [s/m]: xi / (sqrt(2 pi) L omega_l)."""
+    """Return the linearised damping ratio per unit rms liquid velocity [s/m].
+
+    Parameters
+    ----------
+    head_loss_coefficient : float or array
+        xi [-] in the head loss 0.5 rho A xi |y'| y' (orifice or valve).
+    length_m : float or array
+        L, total liquid length [m].
+    frequency_hz : float or array
+        Column frequency f_l [Hz].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        zeta_eq / sigma_y' = xi / (sqrt(2 pi) L omega_l) [s/m]; times the rms
+        liquid velocity it gives :func:`random_equivalent_damping_ratio`.
+
+    References
+    ----------
+    Gao, H., Kwok, K. C. S. and Samali, B. (1997). Optimization of tuned liquid
+    column dampers. Engineering Structures 19(6), 476-486.
+    """
     omega = TWO_PI * np.asarray(frequency_hz, float)
     return np.asarray(head_loss_coefficient, float) / (math.sqrt(TWO_PI) * length_m * omega)
 
@@ -109,24 +184,53 @@ def random_equivalent_damping_ratio(head_loss_coefficient, sigma_velocity_m_s, l
     Returns
     -------
     array
-        zeta_eq = xi sigma_y' / (sqrt(2 pi) L omega_l).
+        zeta_eq = xi sigma_y' / (sqrt(2 pi) L omega_l) [-], referred to the
+        column's own frequency.
 
     Notes
     -----
     E[(xi/2L) |v| v * v] / E[v^2] = (xi/2L) sqrt(8/pi) sigma_v for Gaussian v,
     equated to 2 zeta omega_l (Gao, Kwok & Samali 1997; Yalla & Kareem 2000).
+
+    References
+    ----------
+    Gao, H., Kwok, K. C. S. and Samali, B. (1997), Engineering Structures 19(6),
+    476-486. Yalla, S. K. and Kareem, A. (2000), Journal of Structural
+    Engineering 126(8), 906-915.
     """
     return column_damping_gain(head_loss_coefficient, length_m, frequency_hz) * \
         np.asarray(sigma_velocity_m_s, float)
 
 
 def head_loss_for_damping(damping_ratio, sigma_velocity_m_s, length_m, frequency_hz):
-    """The head-loss coefficient xi giving zeta_eq at rms velocity sigma_y' [-].
+    """Return the head-loss coefficient xi giving zeta_eq at rms velocity sigma_y' [-].
+
+    Parameters
+    ----------
+    damping_ratio : float
+        Target equivalent damping ratio zeta_eq, referred to the column's own
+        frequency [-].
+    sigma_velocity_m_s : float
+        Rms liquid velocity sigma_y' along the column [m/s], Gaussian.
+    length_m : float
+        L, total liquid length [m].
+    frequency_hz : float
+        Column frequency f_l [Hz].
+
+    Returns
+    -------
+    float
+        xi [-] in the head loss 0.5 rho A xi |y'| y'.
 
     Notes
     -----
     Inverse of :func:`random_equivalent_damping_ratio`:
     xi = zeta_eq sqrt(2 pi) L omega_l / sigma_y'.
+
+    References
+    ----------
+    Gao, H., Kwok, K. C. S. and Samali, B. (1997). Optimization of tuned liquid
+    column dampers. Engineering Structures 19(6), 476-486.
     """
     omega = TWO_PI * np.asarray(frequency_hz, float)
     return float(np.asarray(damping_ratio) * math.sqrt(TWO_PI) * length_m * omega
@@ -134,13 +238,33 @@ def head_loss_for_damping(damping_ratio, sigma_velocity_m_s, length_m, frequency
 
 
 def harmonic_equivalent_damping_ratio(head_loss_coefficient, amplitude_m, length_m):
-    """Equivalent damping ratio for a harmonic excursion at the column's frequency [-].
+    """Return the equivalent damping ratio for a harmonic excursion [-].
+
+    Parameters
+    ----------
+    head_loss_coefficient : float or array
+        xi [-] in the head loss 0.5 rho A xi |y'| y'.
+    amplitude_m : float or array
+        U, amplitude of the liquid displacement along the column [m], at the
+        column's own frequency.
+    length_m : float or array
+        L, total liquid length [m].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        zeta_eq [-], referred to the column's own frequency.
 
     Notes
     -----
     Energy per cycle of (xi / 2L) |y'| y' on y = U sin(omega t) is
     (xi / 2L) (8/3) U^3 omega^2; of 2 zeta omega y' it is 2 pi zeta omega^2 U^2;
     equal for zeta = 2 xi U / (3 pi L) (e.g. Gao, Kwok & Samali 1997, from memory).
+
+    References
+    ----------
+    Gao, H., Kwok, K. C. S. and Samali, B. (1997). Optimization of tuned liquid
+    column dampers. Engineering Structures 19(6), 476-486.
     """
     return 2.0 * np.asarray(head_loss_coefficient, float) * np.asarray(amplitude_m, float) / (
         3.0 * math.pi * np.asarray(length_m, float))

@@ -60,42 +60,106 @@ class PendulumSettings:
 
 
 def pendulum_length_m(frequency_hz, gravity_m_s2: float = STANDARD_GRAVITY):
-    """Length L [m] of a simple pendulum of frequency f [Hz].
+    """Return the length L [m] of a simple pendulum of frequency f [Hz].
+
+    Parameters
+    ----------
+    frequency_hz : float or array
+        Target natural frequency f_d of the pendulum damper [Hz].
+    gravity_m_s2 : float
+        Acceleration of gravity g [m/s^2].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        L, suspension point to centre of mass [m] (for n stages, their total).
 
     Notes
     -----
     L = g / (2 pi f)^2 (small swings).
+
+    References
+    ----------
+    Small-swing pendulum frequency, common practice (any dynamics text, e.g.
+    Den Hartog 1956).
     """
     return gravity_m_s2 / (2.0 * math.pi * np.asarray(frequency_hz, float)) ** 2
 
 
 def pendulum_frequency_hz(length_m, gravity_m_s2: float = STANDARD_GRAVITY):
-    """Frequency sqrt(g / L) / (2 pi) [Hz] of a pendulum of total length L [m].
+    """Return the frequency [Hz] of a pendulum of total length L [m].
+
+    Parameters
+    ----------
+    length_m : float or array
+        L, total pendulum length [m].
+    gravity_m_s2 : float
+        Acceleration of gravity g [m/s^2].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        f = sqrt(g / L) / (2 pi) [Hz], small swings.
 
     Notes
     -----
     For n stages of lengths L_i in series (light frames) L = sum L_i
     (:func:`multi_stage_frequency_hz`).
+
+    References
+    ----------
+    Small-swing pendulum frequency, common practice (any dynamics text, e.g.
+    Den Hartog 1956).
     """
     return np.sqrt(gravity_m_s2 / np.asarray(length_m, float)) / (2.0 * math.pi)
 
 
 def multi_stage_frequency_hz(stage_lengths_m, gravity_m_s2: float = STANDARD_GRAVITY):
-    """Frequency [Hz] of a mass on stages of lengths L_i [m] in series (light frames).
+    """Return the frequency [Hz] of a mass on stages of lengths L_i [m] in series.
+
+    Parameters
+    ----------
+    stage_lengths_m : array
+        L_i of each nested stage [m], the stages along the last axis; the
+        intermediate frames are taken as light compared with the mass.
+    gravity_m_s2 : float
+        Acceleration of gravity g [m/s^2].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        f [Hz], one per row of ``stage_lengths_m``.
 
     Notes
     -----
     Each stage carries m g, so its lateral stiffness is m g / L_i; in series
     k = m g / sum L_i and f = sqrt(g / sum L_i) / (2 pi).
+
+    References
+    ----------
+    Springs in series and the small-swing pendulum, common practice.
     """
     total = np.sum(np.asarray(stage_lengths_m, float), axis=-1)
     return pendulum_frequency_hz(total, gravity_m_s2)
 
 
 def swing_angle_rad(stroke_m, length_m):
-    """Swing angle theta = asin(u / L) [rad] at horizontal offset u [m].
+    """Return the swing angle theta = asin(u / L) [rad] at horizontal offset u [m].
 
-    Returns NaN where u > L (no pendulum of that length reaches the stroke).
+    Parameters
+    ----------
+    stroke_m : float or array
+        u, horizontal offset of the mass from below its suspension point [m]
+        (the peak stroke relative to the structure).
+    length_m : float or array
+        L, total pendulum length [m]; with n equal stages each stage swings
+        through the same angle.
+
+    Returns
+    -------
+    float or numpy.ndarray
+        theta [rad]; NaN where u > L (no pendulum of that length reaches the
+        stroke).
     """
     ratio = np.asarray(stroke_m, float) / np.asarray(length_m, float)
     with np.errstate(invalid="ignore"):

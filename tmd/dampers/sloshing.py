@@ -104,19 +104,52 @@ class TankSettings:
 
 
 def sloshing_frequency_hz(length_m, depth_m, gravity_m_s2: float = STANDARD_GRAVITY):
-    """First sloshing frequency of a rectangular tank [Hz].
+    """Return the first sloshing frequency of a rectangular tank [Hz].
+
+    Parameters
+    ----------
+    length_m : float or array
+        L, inside length of the tank in the direction of motion [m].
+    depth_m : float or array
+        h, still water depth [m].
+    gravity_m_s2 : float
+        Acceleration of gravity g [m/s^2].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        f_1 [Hz].
 
     Notes
     -----
     f_1 = (1 / 2 pi) sqrt((pi g / L) tanh(pi h / L)) (linear wave theory; e.g.
     Abramson 1966).
+
+    References
+    ----------
+    Abramson, H. N. (ed.) (1966). The dynamic behavior of liquids in moving
+    containers. NASA SP-106.
     """
     L, h = np.asarray(length_m, float), np.asarray(depth_m, float)
     return np.sqrt(math.pi * gravity_m_s2 / L * np.tanh(math.pi * h / L)) / TWO_PI
 
 
 def tank_length_m(frequency_hz, depth_ratio, gravity_m_s2: float = STANDARD_GRAVITY):
-    """Tank length L [m] with first sloshing frequency f [Hz] at depth ratio h / L.
+    """Return the tank length L [m] with first sloshing frequency f [Hz] at depth ratio h / L.
+
+    Parameters
+    ----------
+    frequency_hz : float or array
+        Target first sloshing frequency f_1 [Hz].
+    depth_ratio : float or array
+        h / L, still water depth over tank length [-].
+    gravity_m_s2 : float
+        Acceleration of gravity g [m/s^2].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        L, tank length in the direction of motion [m].
 
     Notes
     -----
@@ -137,10 +170,22 @@ def sloshing_mass_fraction(depth_ratio, mode: int = 1):
     mode : int
         n = 1, 2, ...; wavenumber (2n - 1) pi / L.
 
+    Returns
+    -------
+    float or numpy.ndarray
+        m_n / m_w [-], the share of the water that sloshes in mode n in the
+        equivalent mechanical model.
+
     Notes
     -----
     m_n / m_w = 8 tanh(q pi h/L) / (q^3 pi^3 h/L), q = 2n - 1 (Graham &
     Rodriguez 1952; Housner 1963 gives the first mode).
+
+    References
+    ----------
+    Graham, E. W. and Rodriguez, A. M. (1952), Journal of Applied Mechanics 19,
+    381-388. Housner, G. W. (1963), Bulletin of the Seismological Society of
+    America 53(2), 381-387.
     """
     r = np.asarray(depth_ratio, float)
     q = 2 * mode - 1
@@ -148,7 +193,18 @@ def sloshing_mass_fraction(depth_ratio, mode: int = 1):
 
 
 def wall_elevation_per_displacement(depth_ratio):
-    """Wave height at the wall per unit sloshing-mass displacement, A / u [-].
+    """Return the wave height at the wall per unit sloshing-mass displacement, A / u [-].
+
+    Parameters
+    ----------
+    depth_ratio : float or array
+        h / L, still water depth over tank length [-].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        A / u [-]: the first mode's free-surface amplitude at the wall per unit
+        displacement of the sloshing mass relative to the tank.
 
     Notes
     -----
@@ -159,19 +215,62 @@ def wall_elevation_per_displacement(depth_ratio):
 
 
 def screen_depth_integral_m(length_m, depth_m):
-    """I_z = int_{-h}^{0} (cosh k(z+h) / cosh kh)^3 dz, k = pi / L [m]."""
+    """Return the depth integral I_z of the cubed velocity profile at a screen [m].
+
+    Parameters
+    ----------
+    length_m : float or array
+        L, tank length in the direction of motion [m].
+    depth_m : float or array
+        h, still water depth [m].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        I_z [m].
+
+    Notes
+    -----
+    I_z = int_{-h}^{0} (cosh k(z+h) / cosh kh)^3 dz = (sinh kh + sinh^3 kh / 3)
+    / (k cosh^3 kh), k = pi / L (the first mode's horizontal velocity profile
+    over depth, linear theory; derived here).
+    """
     k = math.pi / np.asarray(length_m, float)
     kh = k * np.asarray(depth_m, float)
     return (np.sinh(kh) + np.sinh(kh) ** 3 / 3.0) / (k * np.cosh(kh) ** 3)
 
 
 def screen_damping_per_loss_coefficient(length_m, depth_m, frequency_hz, screen_positions):
-    """zeta_eq per unit C_l and unit rms sloshing velocity sigma_u' [s/m].
+    """Return zeta_eq per unit C_l and unit rms sloshing velocity sigma_u' [s/m].
+
+    Parameters
+    ----------
+    length_m : float
+        L, tank length in the direction of motion [m].
+    depth_m : float
+        h, still water depth [m].
+    frequency_hz : float
+        f_1, the tank's first sloshing frequency [Hz].
+    screen_positions : sequence of float
+        Screen positions x_s / L measured from one wall [-].
+
+    Returns
+    -------
+    float
+        zeta_eq / (C_l sigma_u') [s/m]: the statistically linearised damping
+        ratio of the screens, referred to f_1, per unit loss coefficient and
+        per unit rms velocity of the sloshing mass relative to the tank.
 
     Notes
     -----
     sqrt(2/pi) (4/pi)^3 sum_s |sin(pi x_s/L)|^3 I_z / (2 (m_1/m_w) L h omega_1);
     see the module notes (energy equivalence after Tait 2008).
+
+    References
+    ----------
+    Tait, M. J. (2008). Modelling and preliminary design of a structure-TLD
+    system. Engineering Structures 30, 2644-2655 (method; the expression is
+    derived here).
     """
     L, h = float(length_m), float(depth_m)
     positions = np.asarray(screen_positions, float)
@@ -185,12 +284,37 @@ def screen_damping_per_loss_coefficient(length_m, depth_m, frequency_hz, screen_
 def intrinsic_damping_ratio(depth_m, width_m, frequency_hz,
                             kinematic_viscosity_m2_s: float = WATER_KINEMATIC_VISCOSITY,
                             surface_contamination: float = 1.0):
-    """Boundary-layer damping ratio of an unscreened rectangular tank [-].
+    """Return the boundary-layer damping ratio of an unscreened rectangular tank [-].
+
+    Parameters
+    ----------
+    depth_m : float or array
+        h, still water depth [m].
+    width_m : float or array
+        b, tank width across the motion [m].
+    frequency_hz : float or array
+        f_1, the tank's first sloshing frequency [Hz].
+    kinematic_viscosity_m2_s : float
+        nu, kinematic viscosity of the water [m^2/s].
+    surface_contamination : float
+        S [-]: 1 for a contaminated free surface (the usual case), 0 for a
+        clean one.
+
+    Returns
+    -------
+    float or numpy.ndarray
+        zeta_w [-], referred to f_1.
 
     Notes
     -----
     zeta_w = (1 / 2h) sqrt(nu / (2 omega_1)) (1 + 2 h / b + S), S = 1 for a
     contaminated surface (Miles 1967; Sun et al. 1992; from memory).
+
+    References
+    ----------
+    Miles, J. W. (1967), Proc. R. Soc. A 297, 459-475. Sun, L. M., Fujino, Y.,
+    Pacheco, B. M. and Chaiseri, P. (1992), J. Wind Eng. Ind. Aerodyn. 43,
+    1883-1894.
     """
     omega = TWO_PI * np.asarray(frequency_hz, float)
     h, b = np.asarray(depth_m, float), np.asarray(width_m, float)
