@@ -26,75 +26,203 @@ AVERAGING_TIME_S = 600.0
 
 
 def background_factor_sq(breadth_m, height_m, length_scale_m):
-    """Background response factor B^2 [-] (EN 1991-1-4 eq. B.3).
+    """Return the background response factor B^2 [-] (EN 1991-1-4 eq. B.3).
+
+    Parameters
+    ----------
+    breadth_m : float
+        b, breadth of the building across the wind [m].
+    height_m : float
+        h, height of the building [m].
+    length_scale_m : float
+        L(z_s), turbulence length scale at the reference height [m].
+
+    Returns
+    -------
+    float
+        B^2 [-], the quasi-static share of the response, reduced for the lack
+        of full correlation of the gusts over the face.
 
     Notes
     -----
     B^2 = 1 / (1 + 0.9 ((b + h) / L(z_s))^0.63).
+
+    References
+    ----------
+    EN 1991-1-4:2005+A1:2010, Annex B, eq. B.3.
     """
     return 1.0 / (1.0 + 0.9 * ((breadth_m + height_m) / length_scale_m) ** 0.63)
 
 
 def size_reduction(eta):
-    """Aerodynamic admittance R_h or R_b [-] (EN 1991-1-4 eq. B.7).
+    """Return the aerodynamic admittance R_h or R_b [-] (EN 1991-1-4 eq. B.7).
+
+    Parameters
+    ----------
+    eta : float or array
+        eta_h = 4.6 h f_L / L(z_s) or eta_b = 4.6 b f_L / L(z_s) [-], the
+        height or breadth in units of the gusts' correlation length at n_1.
+
+    Returns
+    -------
+    float or numpy.ndarray
+        R_h or R_b [-], in (0, 1].
 
     Notes
     -----
     R(eta) = 1/eta - (1 - exp(-2 eta)) / (2 eta^2), R(0) = 1, with
     eta_h = 4.6 h f_L / L(z_s) and eta_b = 4.6 b f_L / L(z_s).
+
+    References
+    ----------
+    EN 1991-1-4:2005+A1:2010, Annex B, eq. B.7 and B.8.
     """
     return averaged_exponential(eta)
 
 
 def resonance_factor_sq(log_decrement, reduced_spectrum, reduction_height, reduction_breadth):
-    """Resonance response factor R^2 [-] (EN 1991-1-4 eq. B.6).
+    """Return the resonance response factor R^2 [-] (EN 1991-1-4 eq. B.6).
+
+    Parameters
+    ----------
+    log_decrement : float
+        delta, total logarithmic decrement of damping of the mode [-]
+        (structural + aerodynamic + special devices).
+    reduced_spectrum : float
+        S_L(z_s, n_1) [-], EN's non-dimensional power spectral density at the
+        reference height and the natural frequency.
+    reduction_height, reduction_breadth : float
+        R_h and R_b [-], the aerodynamic admittances (:func:`size_reduction`).
+
+    Returns
+    -------
+    float
+        R^2 [-], the resonant share of the response.
 
     Notes
     -----
     R^2 = pi^2 / (2 delta) S_L(z_s, n_1) R_h R_b.
+
+    References
+    ----------
+    EN 1991-1-4:2005+A1:2010, Annex B, eq. B.6.
     """
     admittance = reduction_height * reduction_breadth
     return math.pi**2 / (2.0 * log_decrement) * reduced_spectrum * admittance
 
 
 def peak_factor(upcrossing_hz, duration_s=AVERAGING_TIME_S):
-    """Peak factor k_p [-] (EN 1991-1-4 eq. B.4), not below 3, as a float.
+    """Return the peak factor k_p [-] (EN 1991-1-4 eq. B.4), not below 3, as a float.
+
+    Parameters
+    ----------
+    upcrossing_hz : float
+        nu, the response's up-crossing frequency [Hz] (:func:`upcrossing_frequency`).
+    duration_s : float
+        T, averaging time of the mean wind velocity [s], 600 s in EN.
+
+    Returns
+    -------
+    float
+        k_p [-], the ratio of the expected maximum to the standard deviation
+        of the fluctuating response.
 
     Notes
     -----
     k_p = sqrt(2 ln(nu T)) + 0.6 / sqrt(2 ln(nu T)); the standard's rounding of
     Davenport's 0.5772. Computed by :func:`tmd.peak.eurocode_peak_factor`.
+
+    References
+    ----------
+    EN 1991-1-4:2005+A1:2010, Annex B, eq. B.4.
     """
     return float(eurocode_peak_factor(upcrossing_hz, duration_s))
 
 
 def upcrossing_frequency(frequency_hz, background_sq, resonance_sq):
-    """Up-crossing frequency nu [Hz] (EN 1991-1-4 eq. B.5), not below 0.08 Hz.
+    """Return the up-crossing frequency nu [Hz] (EN 1991-1-4 eq. B.5), not below 0.08 Hz.
+
+    Parameters
+    ----------
+    frequency_hz : float
+        n_1, natural frequency of the along-wind mode [Hz].
+    background_sq : float
+        B^2, background response factor [-].
+    resonance_sq : float
+        R^2, resonance response factor [-].
+
+    Returns
+    -------
+    float
+        nu [Hz].
 
     Notes
     -----
     nu = n_1 sqrt(R^2 / (B^2 + R^2)).
+
+    References
+    ----------
+    EN 1991-1-4:2005+A1:2010, Annex B, eq. B.5.
     """
     return max(frequency_hz * math.sqrt(resonance_sq / (background_sq + resonance_sq)), 0.08)
 
 
 def structural_factor(peak, turbulence_intensity, background_sq, resonance_sq):
-    """Structural factor c_s c_d [-] (EN 1991-1-4 eq. 6.1).
+    """Return the structural factor c_s c_d [-] (EN 1991-1-4 eq. 6.1).
+
+    Parameters
+    ----------
+    peak : float
+        k_p, peak factor [-].
+    turbulence_intensity : float
+        I_v(z_s), turbulence intensity at the reference height [-].
+    background_sq : float
+        B^2, background response factor [-].
+    resonance_sq : float
+        R^2, resonance response factor [-].
+
+    Returns
+    -------
+    float
+        c_s c_d [-], the factor on the peak-velocity-pressure wind force that
+        accounts for non-simultaneous gusts and resonance.
 
     Notes
     -----
     c_s c_d = (1 + 2 k_p I_v(z_s) sqrt(B^2 + R^2)) / (1 + 7 I_v(z_s)).
+
+    References
+    ----------
+    EN 1991-1-4:2005+A1:2010, 6.3.1, eq. 6.1.
     """
     return ((1.0 + 2.0 * peak * turbulence_intensity * math.sqrt(background_sq + resonance_sq))
             / (1.0 + 7.0 * turbulence_intensity))
 
 
 def acceleration_shape_factor(mode_shape_exponent, reference_height_m, roughness_length_m):
-    """Non-dimensional coefficient K_x [-] (EN 1991-1-4 eq. B.11, from memory).
+    """Return the non-dimensional coefficient K_x [-] (EN 1991-1-4 eq. B.11, from memory).
+
+    Parameters
+    ----------
+    mode_shape_exponent : float
+        zeta of the mode shape Phi_1 = (z/h)^zeta [-] (EN Annex F, F.3).
+    reference_height_m : float
+        z_s, reference height of the structure [m].
+    roughness_length_m : float
+        z0, roughness length of the terrain [m].
+
+    Returns
+    -------
+    float
+        K_x [-].
 
     Notes
     -----
     K_x = (2 zeta + 1) {(zeta + 1) [ln(z_s/z0) + 0.5] - 1} / ((zeta + 1)^2 ln(z_s/z0)).
+
+    References
+    ----------
+    EN 1991-1-4:2005+A1:2010, Annex B, eq. B.11 (from memory).
     """
     zeta = mode_shape_exponent
     log = math.log(reference_height_m / roughness_length_m)
@@ -103,7 +231,40 @@ def acceleration_shape_factor(mode_shape_exponent, reference_height_m, roughness
 
 @dataclass(frozen=True)
 class AnnexBResult:
-    """EN 1991-1-4 Annex B quantities for one mode, wind and damping (units in the names)."""
+    """EN 1991-1-4 Annex B quantities for one mode, wind and damping (units in the names).
+
+    Parameters
+    ----------
+    reference_height_m : float
+        z_s, reference height [m].
+    mean_speed_m_s : float
+        v_m(z_s), mean wind velocity at z_s [m/s].
+    turbulence_intensity : float
+        I_v(z_s) [-].
+    length_scale_m : float
+        L(z_s), turbulence length scale [m].
+    background_factor_sq : float
+        B^2 [-] (eq. B.3).
+    resonance_factor_sq : float
+        R^2 [-] (eq. B.6).
+    size_reduction_height, size_reduction_breadth : float
+        R_h and R_b [-] (eq. B.7, B.8).
+    log_decrement_total : float
+        delta = delta_s + delta_a + delta_d [-].
+    upcrossing_hz : float
+        nu [Hz] (eq. B.5).
+    peak_factor : float
+        k_p [-] of the structural factor (eq. B.4).
+    structural_factor : float
+        c_s c_d [-] (eq. 6.1).
+    peak_factor_acceleration : float
+        k_p [-] of the acceleration, with nu = n_1.
+    sigma_acceleration_m_s2 : float
+        sigma_a,x, standard deviation of the along-wind acceleration at the
+        evaluation height [m/s^2] (eq. B.10).
+    peak_acceleration_m_s2 : float
+        k_p sigma_a,x [m/s^2].
+    """
 
     reference_height_m: float
     mean_speed_m_s: float
@@ -122,7 +283,13 @@ class AnnexBResult:
     peak_acceleration_m_s2: float
 
     def as_dict(self) -> dict[str, float]:
-        """The fields as a plain dict (keys as above)."""
+        """Return the fields as a plain dict.
+
+        Returns
+        -------
+        dict of str to float
+            One entry per field, keyed by the field's name (its unit in the name).
+        """
         return asdict(self)
 
 
@@ -131,7 +298,7 @@ def annex_b(*, height_m, breadth_m, force_coefficient, frequency_hz, equivalent_
             roughness_length_m, structural_log_decrement, mode_shape_exponent,
             mode_shape_ratio=1.0, air_density_kg_m3=1.25, damper_log_decrement=0.0,
             duration_s=AVERAGING_TIME_S) -> AnnexBResult:
-    """EN 1991-1-4 Annex B from explicit inputs (the published worked-example level).
+    """Run EN 1991-1-4 Annex B from explicit inputs (the published worked-example level).
 
     Parameters
     ----------
@@ -166,6 +333,16 @@ def annex_b(*, height_m, breadth_m, force_coefficient, frequency_hz, equivalent_
     f_L = n_1 L / v_m; sigma_a = c_f rho b I_v v_m^2 R K_x Phi / (m_e Phi_max)
     (eq. B.10, from memory: the standard divides by m_1,x, the equivalent mass
     per length); its peak factor uses nu = n_1 (B.4(4)).
+
+    Returns
+    -------
+    AnnexBResult
+        Every intermediate quantity and the peak acceleration.
+
+    References
+    ----------
+    EN 1991-1-4:2005+A1:2010, 6.3.1, Annex B (B.2, B.4) and Annex F (F.5,
+    eq. F.18). Eq. B.10 and B.11 from memory.
     """
     delta_a = float(aerodynamic_log_decrement(force_coefficient, air_density_kg_m3, breadth_m,
                                               mean_speed_m_s, frequency_hz, equivalent_mass_kg_m))
@@ -194,11 +371,13 @@ def annex_b(*, height_m, breadth_m, force_coefficient, frequency_hz, equivalent_
 
 def annex_b_check(site, building, mode, return_period_years=50.0, *, damper_log_decrement=0.0,
                   duration_s=AVERAGING_TIME_S) -> AnnexBResult:
-    """EN 1991-1-4 Annex B check of a building's along-wind mode.
+    """Run the EN 1991-1-4 Annex B check of a building's along-wind mode.
 
     Parameters
     ----------
     site : tmd.wind.Site
+        The wind climate and terrain (mean speed, turbulence intensity and
+        length scale at z_s, roughness length, air density).
     building : tmd.loads.Building
         Its drag coefficient is used as c_f; acceleration at evaluation_height_m.
     mode : tmd.structure.Mode
@@ -215,6 +394,15 @@ def annex_b_check(site, building, mode, return_period_years=50.0, *, damper_log_
     -----
     z_s = 0.6 h, not below z_min; m_e from the building
     (:meth:`tmd.loads.Building.equivalent_mass_per_length`).
+
+    Returns
+    -------
+    AnnexBResult
+        Every intermediate quantity and the peak acceleration.
+
+    References
+    ----------
+    EN 1991-1-4:2005+A1:2010, 6.3.1 and Annex B, procedure 1.
     """
     z_s = reference_height(site, building)
     z = np.linspace(0.0, building.height_m, 2001)

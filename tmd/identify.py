@@ -101,6 +101,8 @@ class Identification:
     duration_s : float
         Record length [s].
     warnings : tuple of str
+        Plain-language cautions about the identification (short record, methods
+        that disagree, a fit at the edge of its range), one sentence each.
     """
 
     frequency_hz: float
@@ -114,7 +116,7 @@ class Identification:
     warnings: tuple[str, ...] = ()
 
     def as_dict(self) -> dict:
-        """The ``tmd identify --json`` dictionary.
+        """Return the ``tmd identify --json`` dictionary.
 
         Returns
         -------
@@ -205,6 +207,7 @@ def periodogram(record: AccelerationRecord) -> tuple[np.ndarray, np.ndarray]:
     Parameters
     ----------
     record : AccelerationRecord
+        Ambient acceleration of the building [m/s^2], evenly sampled.
 
     Returns
     -------
@@ -252,6 +255,7 @@ def spectral_fit(record: AccelerationRecord, frequency_hz_guess: float, *,
     Parameters
     ----------
     record : AccelerationRecord
+        Ambient acceleration of the building [m/s^2], evenly sampled.
     frequency_hz_guess : float
         A first estimate of the mode's frequency (e.g. the Welch peak) [Hz].
     damping_ratio_guess : float
@@ -304,11 +308,12 @@ def spectral_fit(record: AccelerationRecord, frequency_hz_guess: float, *,
 
 def random_decrement_signature(record: AccelerationRecord, frequency_hz_guess: float, *,
                                length_s: float | None = None) -> tuple[np.ndarray, np.ndarray, int]:
-    """The random decrement signature of the band-passed record.
+    """Return the random decrement signature of the band-passed record.
 
     Parameters
     ----------
     record : AccelerationRecord
+        Ambient acceleration of the building [m/s^2], evenly sampled.
     frequency_hz_guess : float
         The mode's frequency, centre of the band-pass [Hz].
     length_s : float, optional
@@ -363,6 +368,7 @@ def random_decrement(record: AccelerationRecord, frequency_hz_guess: float) -> M
     Parameters
     ----------
     record : AccelerationRecord
+        Ambient acceleration of the building [m/s^2], evenly sampled.
     frequency_hz_guess : float
         A first estimate of the mode's frequency [Hz].
 
@@ -421,6 +427,7 @@ def welch_peak_hz(record: AccelerationRecord, min_frequency_hz: float | None = N
     Parameters
     ----------
     record : AccelerationRecord
+        Ambient acceleration of the building [m/s^2], evenly sampled.
     min_frequency_hz, max_frequency_hz : float, optional
         Search range [Hz]; by default from 20 / T to a quarter of the
         sampling rate.
@@ -458,12 +465,12 @@ def welch_peak_hz(record: AccelerationRecord, min_frequency_hz: float | None = N
 
 def identify_mode(record: AccelerationRecord, *, min_frequency_hz: float | None = None,
                   max_frequency_hz: float | None = None) -> Identification:
-    """The mode's frequency and total damping ratio by both methods, with their spread.
+    """Return the mode's frequency and total damping ratio by both methods, with their spread.
 
     Parameters
     ----------
     record : AccelerationRecord
-        Ambient acceleration with the damper locked.
+        Ambient acceleration [m/s^2] with the damper locked, evenly sampled.
     min_frequency_hz, max_frequency_hz : float, optional
         Where to look for the mode [Hz] (see :func:`welch_peak_hz`).
 

@@ -48,7 +48,7 @@ def about(load: str) -> Iterator[None]:
 
 
 def current_load() -> str:
-    """The load named by the innermost :func:`about` block.
+    """Return the load named by the innermost :func:`about` block.
 
     Returns
     -------
@@ -77,7 +77,7 @@ class LoadWarning(UserWarning):
 
     @classmethod
     def text(cls, load: str, values: dict[str, float], count: int) -> str:
-        """The warning in words.
+        """Return the warning in words.
 
         Parameters
         ----------
@@ -96,7 +96,7 @@ class LoadWarning(UserWarning):
         return f"{load}: {cls.__name__}"
 
     def key(self) -> tuple:
-        """What makes two warnings the same cause: their kind, load and any non-numeric detail.
+        """Return what makes two warnings the same cause: kind, load and any non-numeric detail.
 
         Returns
         -------

@@ -21,7 +21,7 @@ SMALLEST_PEAK_FACTOR = 2.0 * np.sqrt(EULER_GAMMA)
 
 
 def davenport_peak_factor(upcrossing_hz, duration_s):
-    """Davenport's peak factor g for a Gaussian process.
+    """Return Davenport's peak factor g for a Gaussian process.
 
     Parameters
     ----------
@@ -44,6 +44,11 @@ def davenport_peak_factor(upcrossing_hz, duration_s):
     it is not used: g is held at its smallest value 2 sqrt(0.5772) = 1.519, so
     that g never decreases as nu T grows. :func:`peak_factor_is_held` tells
     where that happened.
+
+    References
+    ----------
+    Davenport, A. G. (1964). Note on the distribution of the largest value of a
+    random function with application to gust loading. Proc. ICE 28(2), 187-196.
     """
     with np.errstate(divide="ignore", invalid="ignore"):
         x = 2.0 * np.log(np.asarray(upcrossing_hz, float) * np.asarray(duration_s, float))
@@ -53,14 +58,29 @@ def davenport_peak_factor(upcrossing_hz, duration_s):
 
 
 def peak_factor_is_held(upcrossing_hz, duration_s):
-    """True where nu T is too small for Davenport's formula (see above)."""
+    """Tell where nu T is too small for Davenport's formula.
+
+    Parameters
+    ----------
+    upcrossing_hz : float or array
+        Mean zero up-crossing rate nu = sqrt(m2 / m0) [Hz].
+    duration_s : float or array
+        Averaging duration T [s].
+
+    Returns
+    -------
+    bool or numpy.ndarray of bool
+        True where 2 ln(nu T) < 0.5772 (or nu T <= 0), where
+        :func:`davenport_peak_factor` holds g at its smallest value 1.519
+        instead of using the asymptotic formula.
+    """
     product = np.asarray(upcrossing_hz, float) * np.asarray(duration_s, float)
     with np.errstate(divide="ignore"):
         return ~(2.0 * np.log(product) >= SMALLEST_ARGUMENT)
 
 
 def eurocode_peak_factor(upcrossing_hz, duration_s=600.0):
-    """Peak factor of EN 1991-1-4 (B.4): 0.6 in place of 0.5772, and at least 3.
+    """Return the peak factor of EN 1991-1-4 (B.4): 0.6 in place of 0.5772, and at least 3.
 
     Parameters
     ----------
@@ -73,7 +93,16 @@ def eurocode_peak_factor(upcrossing_hz, duration_s=600.0):
     Returns
     -------
     array
-        k_p = max(sqrt(2 ln(nu T)) + 0.6 / sqrt(2 ln(nu T)), 3).
+        k_p [-], the expected maximum over T in standard deviations.
+
+    Notes
+    -----
+    k_p = max(sqrt(2 ln(nu T)) + 0.6 / sqrt(2 ln(nu T)), 3); 3 where
+    ln(nu T) <= 0.
+
+    References
+    ----------
+    EN 1991-1-4:2005, Annex B, eq. B.4.
     """
     x = 2.0 * np.log(np.asarray(upcrossing_hz, float) * duration_s)
     with np.errstate(invalid="ignore", divide="ignore"):
@@ -89,7 +118,7 @@ _NODES, _WEIGHTS = np.polynomial.legendre.leggauss(160)
 
 
 def vanmarcke_distribution(level, upcrossing_hz, bandwidth, duration_s, *, two_sided=True):
-    """Vanmarcke's probability that a Gaussian response stays below a level over T.
+    """Return Vanmarcke's probability that a Gaussian response stays below a level over T.
 
     Parameters
     ----------
@@ -142,7 +171,7 @@ def vanmarcke_distribution(level, upcrossing_hz, bandwidth, duration_s, *, two_s
 
 
 def vanmarcke_peak_factor(upcrossing_hz, bandwidth, duration_s, *, two_sided=True):
-    """Mean largest value over T, in standard deviations, by Vanmarcke's distribution.
+    """Return the mean largest value over T, in standard deviations, by Vanmarcke's distribution.
 
     Parameters
     ----------

@@ -74,7 +74,7 @@ class BuiltDamper:
         return self.damping_n_s_per_m / (2.0 * self.mass_kg * TWO_PI * self.frequency_hz)
 
     def on(self, mode: Mode) -> TunedMassDamper:
-        """The same device described relative to ``mode``.
+        """Return the same device described relative to ``mode``.
 
         Parameters
         ----------
@@ -91,7 +91,7 @@ class BuiltDamper:
 
     @classmethod
     def of(cls, damper: TunedMassDamper, mode: Mode) -> BuiltDamper:
-        """The absolute properties of a damper given relative to ``mode``.
+        """Return the absolute properties of a damper given relative to ``mode``.
 
         Parameters
         ----------
@@ -144,7 +144,7 @@ def measured_structure(nominal: Mode, structural_damping_ratio: float,
                        aerodynamic_damping_ratio: float, frequency_hz: float, *,
                        damping_ratio: float | None = None,
                        modal_mass_kg: float | None = None) -> MeasuredStructure:
-    """The measured structure from the case's mode and the measurements.
+    """Return the measured structure from the case's mode and the measurements.
 
     Parameters
     ----------
@@ -195,6 +195,8 @@ class Retuning:
     Parameters
     ----------
     structure : MeasuredStructure
+        The building as measured: natural frequency, modal mass and the
+        damping used with the design load.
     installed : BuiltDamper
         The damper as built and tuned to the model.
     retuned : BuiltDamper
@@ -237,7 +239,7 @@ class Retuning:
                     and k_lo <= self.retuned.stiffness_n_per_m <= k_hi)
 
     def as_dict(self) -> dict:
-        """The ``retuned`` block of ``tmd retune --json``.
+        """Return the ``retuned`` block of ``tmd retune --json``.
 
         Returns
         -------
@@ -286,6 +288,8 @@ def retune_damper(load: LoadedMode, structure: MeasuredStructure, installed: Bui
     load : LoadedMode
         The case's design load (its mode is replaced by the measured one).
     structure : MeasuredStructure
+        The building as measured: natural frequency, modal mass and the
+        damping used with the design load.
     installed : BuiltDamper
         The damper as built.
     adjustment_band : float

@@ -58,7 +58,7 @@ class Range:
         return f" {self.unit}" if self.unit else ""
 
     def describe(self) -> str:
-        """The hard range in words.
+        """Return the hard range in words.
 
         Returns
         -------
@@ -90,7 +90,7 @@ class Range:
         return value
 
     def note(self, name: str, value: float) -> str | None:
-        """A warning text when ``value`` lies outside the usual range, else None.
+        """Return a warning text when ``value`` lies outside the usual range, else None.
 
         Parameters
         ----------
@@ -111,7 +111,7 @@ class Range:
                 "its unit")
 
     def field(self) -> Any:
-        """The pydantic type of a finite number in this range.
+        """Return the pydantic type of a finite number in this range.
 
         Returns
         -------
@@ -173,7 +173,7 @@ def _unique(values):
 
 
 def unique_list(item: Any, max_length: int) -> Any:
-    """The pydantic type of a list of at most ``max_length`` distinct items.
+    """Return the pydantic type of a list of at most ``max_length`` distinct items.
 
     Parameters
     ----------
@@ -192,7 +192,7 @@ def unique_list(item: Any, max_length: int) -> Any:
 
 
 def describe_error(err: dict) -> str:
-    """What a pydantic error says is allowed, in the project's words.
+    """Return what a pydantic error says is allowed, in the project's words.
 
     Parameters
     ----------
@@ -242,7 +242,7 @@ def _num(value: Any) -> str:
 
 
 def shown(value: Any) -> str:
-    """A value as messages show it.
+    """Return a value as messages show it.
 
     Parameters
     ----------

@@ -141,7 +141,7 @@ if sorted(DESIGN_REPORT_ORDER) != sorted(DESIGN_KEYS):  # one list of keys, two 
 
 
 def design_block(design: TmdDesign | None) -> dict:
-    """The ``design`` block of results.json for one TMD design.
+    """Return the ``design`` block of results.json for one TMD design.
 
     Parameters
     ----------

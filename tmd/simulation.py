@@ -77,7 +77,7 @@ class SimulationSettings:
     substeps: int = 4
 
     def time_step_for(self, spectrum, structure_frequency_hz: float) -> float:
-        """The sample step: the one given, or the default for this load and structure.
+        """Return the sample step: the one given, or the default for this load and structure.
 
         Parameters
         ----------
@@ -184,7 +184,7 @@ class ResponseStatistics:
     bandwidth: float
 
     def summary(self, unit_suffix: str, limit: float | None = None) -> dict:
-        """The results.json block of this response.
+        """Return the results.json block of this response.
 
         Parameters
         ----------

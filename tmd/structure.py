@@ -59,5 +59,17 @@ class Mode:
         return 2.0 * self.damping_ratio * self.modal_mass_kg * self.angular_frequency
 
     def with_damping(self, damping_ratio: float) -> Mode:
-        """The same mode with another damping ratio."""
+        """Return the same mode with another damping ratio.
+
+        Parameters
+        ----------
+        damping_ratio : float
+            New structural damping ratio of the mode, referred to its natural
+            frequency [-].
+
+        Returns
+        -------
+        Mode
+            A copy of this mode, its frequency and modal mass unchanged.
+        """
         return replace(self, damping_ratio=damping_ratio)

@@ -30,7 +30,7 @@ OPTION_COLUMNS = (  # header (units in brackets), results key, format, display s
 
 
 def console(*, stderr: bool = False) -> Console:
-    """A rich console as wide as the terminal, or as ``COLUMNS`` says when output is piped.
+    """Return a rich console as wide as the terminal, or as ``COLUMNS`` says when output is piped.
 
     Parameters
     ----------
@@ -59,7 +59,7 @@ def _cell(value, fmt: str, scale) -> str:
 
 
 def options_table(result: dict) -> Table:
-    """The compare job's options, one row each, fitting 80 columns without truncation.
+    """Return the compare job's options, one row each, fitting 80 columns without truncation.
 
     Parameters
     ----------
@@ -92,7 +92,7 @@ def options_table(result: dict) -> Table:
 
 
 def sweep_table(result: dict) -> Table:
-    """The structure-frequency sweep of ``tmd sweep``, every column with its unit.
+    """Return the structure-frequency sweep of ``tmd sweep``, every column with its unit.
 
     Parameters
     ----------
@@ -117,7 +117,7 @@ def sweep_table(result: dict) -> Table:
 
 
 def verdict_line(result: dict, subject: str = "the given damper") -> tuple[str, str]:
-    """One line stating the design block's verdict against the target, and its colour.
+    """Return one line stating the design block's verdict against the target, and its colour.
 
     Parameters
     ----------
@@ -146,10 +146,36 @@ def verdict_line(result: dict, subject: str = "the given damper") -> tuple[str, 
 
 
 def accel(value: float) -> str:
+    """Return an acceleration as printed: m/s^2 and milli-g.
+
+    Parameters
+    ----------
+    value : float
+        Acceleration [m/s^2].
+
+    Returns
+    -------
+    str
+        E.g. "0.1234 m/s² (12.6 milli-g)", with g the standard gravity.
+    """
     return f"{value:.4f} m/s² ({1000 * value / STANDARD_GRAVITY:.1f} milli-g)"
 
 
 def summary_table(result: dict) -> Table:
+    """Return the design job's summary: the bare building against the recommended design.
+
+    Parameters
+    ----------
+    result : dict
+        results.json of ``tmd design`` (``bare``, ``target``, ``design`` and,
+        where made, ``recommended`` and ``band_design``).
+
+    Returns
+    -------
+    rich.table.Table
+        Peak and rms acceleration and peak factor of both, then the damper's
+        mass, tuning, spring, dashpot, stroke, force and effective damping.
+    """
     table = Table(title=f"{result['case']['name']}", show_lines=False)
     table.add_column("quantity")
     table.add_column("bare building", justify="right")
@@ -188,6 +214,18 @@ def summary_table(result: dict) -> Table:
 
 
 def return_period_table(result: dict) -> Table | None:
+    """Return the design's peaks at each return period, with the stroke limit where set.
+
+    Parameters
+    ----------
+    result : dict
+        results.json of ``tmd design`` (``by_return_period``).
+
+    Returns
+    -------
+    rich.table.Table or None
+        One row per return period; None when the results have no such rows.
+    """
     rows = result.get("by_return_period")
     if not rows:
         return None
@@ -211,7 +249,18 @@ def return_period_table(result: dict) -> Table | None:
 
 
 def end_stop_table(result: dict) -> Table | None:
-    """Travel, stop contacts, impact velocity and connection-force estimate."""
+    """Return the end-stop table: travel, stop contacts and connection-force estimate.
+
+    Parameters
+    ----------
+    result : dict
+        A results dictionary with an ``end_stops`` block.
+
+    Returns
+    -------
+    rich.table.Table or None
+        One row per return period; None when there is no ``end_stops`` block.
+    """
     e = result.get("end_stops")
     if not e:
         return None
@@ -229,6 +278,14 @@ def end_stop_table(result: dict) -> Table | None:
 
 
 def print_recommendation(result: dict) -> None:
+    """Print which design is recommended, why, by which rule, and its end-stops.
+
+    Parameters
+    ----------
+    result : dict
+        results.json of ``tmd design``; nothing is printed without a
+        ``recommended`` block.
+    """
     rec = result.get("recommended")
     if not rec:
         return
@@ -242,6 +299,13 @@ def print_recommendation(result: dict) -> None:
 
 
 def print_end_stops(result: dict) -> None:
+    """Print the end-stop table, the impact velocity and energy at the stops.
+
+    Parameters
+    ----------
+    result : dict
+        A results dictionary; nothing is printed without an ``end_stops`` block.
+    """
     if (table := end_stop_table(result)) is None:
         return
     e = result["end_stops"]
@@ -257,6 +321,13 @@ def print_end_stops(result: dict) -> None:
 
 
 def print_notes(result: dict) -> None:
+    """Print the results' warnings (to standard error) and cautions.
+
+    Parameters
+    ----------
+    result : dict
+        A results dictionary with ``cautions`` and, optionally, ``warnings``.
+    """
     for message in result.get("warnings", []):
         err_console.print(f"[yellow]warning:[/] {escape(message)}", highlight=False)
     out_console.print("[dim]Cautions: " + escape(" ".join(result["cautions"])) + "[/]",
@@ -264,7 +335,14 @@ def print_notes(result: dict) -> None:
 
 
 def print_robustness(result: dict) -> None:
-    """The nominal and robust designs across the band, and what robustness costs."""
+    """Print the nominal and robust designs across the band, and what robustness costs.
+
+    Parameters
+    ----------
+    result : dict
+        results.json of ``tmd design``; nothing is printed without a
+        ``robustness_summary`` block.
+    """
     summary = result.get("robustness_summary")
     if summary is None:
         return
@@ -331,7 +409,13 @@ WIND_ROWS = (
 
 
 def print_simulation(result: dict) -> None:
-    """One table per load: simulated maxima against the spectral peaks."""
+    """Print one table per load: simulated maxima against the spectral peaks.
+
+    Parameters
+    ----------
+    result : dict
+        results.json of ``tmd simulate`` (its ``simulation`` block).
+    """
     block = result["simulation"]
     for row in block["by_load"]:
         years = row.get("return_period_years")
@@ -361,7 +445,14 @@ def print_simulation(result: dict) -> None:
 
 
 def print_building(result: dict) -> None:
-    """Peaks per wind and point, each damper axis and the governing cases of a building."""
+    """Print a building's peaks per wind and point, its damper axes and governing cases.
+
+    Parameters
+    ----------
+    result : dict
+        results.json of the whole-building job (``points``, ``damper_axes``,
+        ``governing``, ``sizing``).
+    """
     table = Table(title=escape(f"{result['case']['name']}: peak accelerations [m/s²], design "
                                "return period"))
     for column in ("wind", "point", "bare resultant", "damped x", "damped y",
@@ -396,7 +487,13 @@ def print_building(result: dict) -> None:
 
 
 def print_wind(result: dict) -> None:
-    """The wind job's rows per return period, and which route includes aerodynamic damping."""
+    """Print the wind job's rows per return period and which route has aerodynamic damping.
+
+    Parameters
+    ----------
+    result : dict
+        results.json of ``tmd wind`` (its ``return_periods`` rows).
+    """
     table = Table(title=f"{result['case']['name']}: bare building, code route and spectral route")
     table.add_column("quantity")
     for row in result["return_periods"]:
@@ -414,7 +511,15 @@ def print_wind(result: dict) -> None:
 
 
 def print_retuned(result: dict, case_name: str) -> None:
-    """The retune job's damper as installed and re-tuned, against the specified range."""
+    """Print the retune job's damper as installed and re-tuned, against the specified range.
+
+    Parameters
+    ----------
+    result : dict
+        Output of the retune job (its ``retuned`` block).
+    case_name : str
+        Name of the case, for the table's title.
+    """
     r = result["retuned"]
     s = r["structure"]
     table = Table(title=f"{case_name}: re-tuning to the measured structure")
@@ -453,7 +558,15 @@ def print_retuned(result: dict, case_name: str) -> None:
 
 
 def print_identified(result: dict, record_name: str) -> None:
-    """The identified mode by each method, the spread, and the retune command to use."""
+    """Print the identified mode by each method, the spread, and the retune command to use.
+
+    Parameters
+    ----------
+    result : dict
+        Output of the identify job (``tmd identify --json``).
+    record_name : str
+        Name of the acceleration record, for the table's title.
+    """
     table = Table(title=f"{record_name}: identified mode ({result['duration_s']:.0f} s record)")
     for name in ("method", "frequency", "damping ratio"):
         table.add_column(name, justify="right")
