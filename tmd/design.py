@@ -75,7 +75,7 @@ class LoadedMode:
     aerodynamic_damping_ratio: float = 0.0
 
     def structure_damping_ratio(self, frequency_factor):
-        """Structure damping ratio with the frequency scaled by s: the band definition [-].
+        """Return the structure damping ratio with the frequency scaled by s [-].
 
         Parameters
         ----------
@@ -117,6 +117,21 @@ class LoadedMode:
                            require("shape_factor", self.shape_factor, Positive))
 
     def assess(self, absorbers, **kw):
+        """Return the responses of a batch of designs on this mode and load.
+
+        Parameters
+        ----------
+        absorbers : Absorbers
+            The absorbers of each design (:mod:`tmd.dampers.absorber`).
+        **kw
+            Further keywords of :func:`tmd.performance.assess` (``warn``,
+            ``responses``).
+
+        Returns
+        -------
+        Assessment
+            Rms and peak responses, accelerations at the evaluation height.
+        """
         m = self.mode
         return assess(m.frequency_hz, m.modal_mass_kg, m.damping_ratio, absorbers,
                       self.spectrum, self.duration_s, shape_factor=self.shape_factor,
@@ -125,6 +140,23 @@ class LoadedMode:
 
 @dataclass(frozen=True)
 class Tuning:
+    """Best tuning of a TMD of given mass ratio (outcome of :func:`tune`).
+
+    Parameters
+    ----------
+    frequency_ratio : float
+        f_d / f_s [-] at the optimum.
+    damping_ratio : float
+        zeta_d [-] at the optimum, referred to the damper's own frequency.
+    value : float
+        The objective at the optimum: peak or rms acceleration [m/s^2] or
+        displacement [m], as asked.
+    peak_stroke_m : float
+        Peak stroke of the damper relative to the structure at the optimum [m].
+    stroke_limited : bool
+        True when the stroke limit is active at the optimum.
+    """
+
     frequency_ratio: float
     damping_ratio: float
     value: float  # the objective at the optimum [m/s^2 or m]
@@ -142,6 +174,18 @@ class Sizing:
     smallest mass ratio searched already meets the target) or "bare" (the
     bare building meets the target, no damper needed). ``meets_target`` is
     the design's own verdict (:func:`tmd.verdict.meets_target` on its peak).
+
+    Parameters
+    ----------
+    design : TmdDesign or None
+        The least-mass design, or the best reachable; None when no damper is
+        needed ("bare").
+    meets_target : bool
+        Whether that design's peak acceleration meets the target.
+    governed_by : str
+        What decided the mass: "target", "stroke", "mass", "minimum" or "bare".
+    message : str
+        The outcome in one plain sentence.
     """
 
     design: TmdDesign | None
@@ -151,7 +195,19 @@ class Sizing:
 
 
 def bare_response(loaded: LoadedMode) -> BareResponse:
-    """Responses of the building without a damper."""
+    """Return the responses of the building without a damper.
+
+    Parameters
+    ----------
+    loaded : LoadedMode
+        The mode under its load, with the reporting conventions.
+
+    Returns
+    -------
+    BareResponse
+        Rms and peak acceleration at the evaluation height [m/s^2], peak
+        factor [-], up-crossing rate [Hz] and rms displacement [m].
+    """
     a = loaded.assess(Absorbers.none())
     return BareResponse(float(a.sigma_acceleration_m_s2), float(a.peak_acceleration_m_s2),
                         float(a.peak_factor), float(a.upcrossing_hz),
@@ -160,7 +216,24 @@ def bare_response(loaded: LoadedMode) -> BareResponse:
 
 def evaluate_tmd(loaded: LoadedMode, damper: TunedMassDamper,
                  target_peak_m_s2: float | None = None) -> TmdDesign:
-    """Every response of one given TMD (e.g. a proposed or as-built damper)."""
+    """Return every response of one given TMD (e.g. a proposed or as-built damper).
+
+    Parameters
+    ----------
+    loaded : LoadedMode
+        The mode under its load, with the reporting conventions.
+    damper : TunedMassDamper
+        The TMD by mass ratio, frequency ratio and damping ratio.
+    target_peak_m_s2 : float, optional
+        Peak acceleration target at the evaluation height [m/s^2]; without it
+        ``meets_target`` is None.
+
+    Returns
+    -------
+    TmdDesign
+        The damper's absolute properties and the responses, with the effective
+        damping ratio of the bare mode that gives the same rms acceleration.
+    """
     m = loaded.mode
     a = loaded.assess(damper.absorbers(m), warn=True)
     modal_sigma = float(a.sigma_acceleration_m_s2) / loaded.shape_factor
@@ -182,13 +255,39 @@ def evaluate_tmd(loaded: LoadedMode, damper: TunedMassDamper,
 
 
 def central_difference_points(x):
-    """x and x +/- the step along each axis: the 5 designs of one batched gradient."""
+    """Return x and x +/- the step along each axis: the designs of one batched gradient.
+
+    Parameters
+    ----------
+    x : array of shape (n,)
+        The design variables, here (f_d/f_s, ln zeta_d) [-].
+
+    Returns
+    -------
+    numpy.ndarray of shape (2 n + 1, n)
+        x, then x + h e_i for each axis, then x - h e_i, h = 1e-6.
+    """
     x = np.asarray(x, float)
     return np.vstack([x, x + _STEP * np.eye(x.size), x - _STEP * np.eye(x.size)])
 
 
 def central_difference_gradient(values):
-    """Gradient from values at :func:`central_difference_points` (along axis 0)."""
+    """Return the gradient from values at :func:`central_difference_points` (along axis 0).
+
+    Parameters
+    ----------
+    values : numpy.ndarray
+        The function at the 2 n + 1 points, in their order [unit of the function].
+
+    Returns
+    -------
+    numpy.ndarray
+        (f(x + h e_i) - f(x - h e_i)) / (2 h) for each axis i [unit per unit of x].
+
+    Notes
+    -----
+    Central differences, error O(h^2); common practice.
+    """
     n = (len(values) - 1) // 2
     return (values[1:n + 1] - values[n + 1:]) / (2 * _STEP)
 
@@ -250,7 +349,7 @@ class _TuningProblem:
 
 
 def _check_sizing_arguments(*, target_peak_m_s2=None, max_mass_ratio=None, max_stroke_m=None):
-    """The case file's rules for the sizing arguments that are given (tmd.rules)."""
+    """Check the sizing arguments that are given by the case file's rules (tmd.rules)."""
     if target_peak_m_s2 is not None:
         require("peak_acceleration_m_s2", target_peak_m_s2, Positive)
     if max_mass_ratio is not None:
@@ -263,11 +362,12 @@ def tune(loaded: LoadedMode, mass_ratio: float, *, objective: str = "acceleratio
          statistic: str = "peak", max_stroke_m: float | None = None,
          stroke_loads: tuple[LoadedMode, ...] = (),
          start: tuple[float, float] | None = None) -> Tuning:
-    """Best frequency and damping ratio of a TMD of given mass ratio.
+    """Return the best frequency and damping ratio of a TMD of given mass ratio.
 
     Parameters
     ----------
     loaded : LoadedMode
+        The mode under its design load, with the reporting conventions.
     mass_ratio : float
         mu = m_d / M* [-].
     objective : {"acceleration", "displacement"}
@@ -332,11 +432,12 @@ def tune(loaded: LoadedMode, mass_ratio: float, *, objective: str = "acceleratio
 def least_mass(loaded: LoadedMode, target_peak_m_s2: float, *, max_mass_ratio: float,
                max_stroke_m: float | None = None, min_mass_ratio: float = 1e-4,
                stroke_loads: tuple[LoadedMode, ...] = ()) -> Sizing:
-    """Smallest mass ratio whose best tuning meets the peak-acceleration target.
+    """Return the smallest mass ratio whose best tuning meets the peak-acceleration target.
 
     Parameters
     ----------
     loaded : LoadedMode
+        The mode under its design load, with the reporting conventions.
     target_peak_m_s2 : float
         Peak acceleration target at the evaluation height [m/s^2].
     max_mass_ratio : float

@@ -28,14 +28,19 @@ PEAK_METHODS = ("davenport", "vanmarcke")
 class UpperEdgeWarning(LoadWarning):
     """Much of a response moment comes from the top decade of the load spectrum.
 
-    Its values are ``share_m0`` and ``share_m2`` (the largest shares of the
-    acceleration's variance and second moment over the batch [-]) and
-    ``f_max_hz``, the top of the load's range [Hz].
+    Parameters
+    ----------
+    load : str
+        The load it concerns.
+    values : dict of str to float
+        ``share_m0`` and ``share_m2``, the largest shares of the acceleration's
+        variance and second moment over the batch [-], and ``f_max_hz``, the
+        top of the load's range [Hz].
     """
 
     @classmethod
     def text(cls, load, values, count):
-        """The warning in words (see :meth:`tmd.notes.LoadWarning.text`).
+        """Return the warning in words (see :meth:`tmd.notes.LoadWarning.text`).
 
         Parameters
         ----------
@@ -72,18 +77,23 @@ class UpperEdgeWarning(LoadWarning):
 class NoEffectiveDampingWarning(LoadWarning):
     """No damping ratio of the bare mode gives the damped structure's rms acceleration.
 
-    Its values: ``missing`` (how many ratios have no value) and ``total``
-    (of how many) [-]; ``reason`` 1 (the damped response exceeds the bare
-    mode's at the lowest damping searched), 2 (it is below it at the
-    highest) or 0 (no convergence); ``sigma_m_s2`` the damped rms
-    acceleration and ``bare_sigma_m_s2`` the bare mode's at that end of the
-    search [m/s^2]; ``damping_ratio`` that end [-]; ``frequency_hz`` the
-    mode's and ``f_min_hz``, ``f_max_hz`` the load's range [Hz].
+    Parameters
+    ----------
+    load : str
+        The load it concerns.
+    values : dict of str to float
+        ``missing`` (how many ratios have no value) and ``total``
+        (of how many) [-]; ``reason`` 1 (the damped response exceeds the bare
+        mode's at the lowest damping searched), 2 (it is below it at the
+        highest) or 0 (no convergence); ``sigma_m_s2`` the damped rms
+        acceleration and ``bare_sigma_m_s2`` the bare mode's at that end of the
+        search [m/s^2]; ``damping_ratio`` that end [-]; ``frequency_hz`` the
+        mode's and ``f_min_hz``, ``f_max_hz`` the load's range [Hz].
     """
 
     @classmethod
     def text(cls, load, values, count):
-        """The warning in words (see :meth:`tmd.notes.LoadWarning.text`).
+        """Return the warning in words (see :meth:`tmd.notes.LoadWarning.text`).
 
         Parameters
         ----------
@@ -140,6 +150,28 @@ class Assessment:
     damper level [m]; strokes per absorber (last axis) [m]; force is the
     total the absorbers put on the structure [N]. The fields of a response
     left out of ``responses`` (see :func:`assess`) are None.
+
+    Parameters
+    ----------
+    sigma_displacement_m, peak_displacement_m : numpy.ndarray
+        Rms and peak displacement of the structure at the damper level [m].
+    sigma_acceleration_m_s2, peak_acceleration_m_s2 : numpy.ndarray
+        Rms and peak acceleration at the evaluation height [m/s^2].
+    peak_factor : numpy.ndarray
+        g of the acceleration [-], peak = g sigma.
+    upcrossing_hz : numpy.ndarray
+        Mean zero up-crossing rate of the acceleration [Hz].
+    sigma_stroke_m, peak_stroke_m : numpy.ndarray
+        Rms and peak stroke of each absorber relative to the structure [m]
+        (last axis: the absorbers).
+    sigma_force_n, peak_damper_force_n : numpy.ndarray
+        Rms and peak of the total force the absorbers put on the structure [N].
+    top_decade_share_m0, top_decade_share_m2 : numpy.ndarray
+        Shares of the acceleration's variance and second spectral moment that
+        come from the top decade of the load's frequency range [-].
+    peak_factor_held : numpy.ndarray of bool
+        True where nu T was too small for Davenport's formula and g was held
+        at its smallest value (:func:`tmd.peak.peak_factor_is_held`).
     """
 
     sigma_displacement_m: np.ndarray
@@ -288,7 +320,25 @@ def _require_finite(**inputs):
 
 
 def bare_sigma_acceleration(frequency_hz, modal_mass_kg, damping_ratio, spectrum):
-    """Rms acceleration [m/s^2] of the bare mode (no absorber) at the damper level."""
+    """Return the rms acceleration [m/s^2] of the bare mode (no absorber) at the damper level.
+
+    Parameters
+    ----------
+    frequency_hz : float or array
+        Natural frequency of the mode [Hz].
+    modal_mass_kg : float or array
+        Modal mass M* [kg], mode shape = 1 at the damper.
+    damping_ratio : float or array
+        Damping ratio of the mode [-] (structural plus aerodynamic where the
+        caller includes it).
+    spectrum : ForceSpectrum
+        One-sided modal force PSD [N^2/Hz].
+
+    Returns
+    -------
+    numpy.ndarray
+        sigma_a [m/s^2], broadcast over ``frequency_hz`` and ``damping_ratio``.
+    """
     zeta = np.asarray(damping_ratio, float)
     none = Absorbers.none(np.broadcast_shapes(zeta.shape, np.shape(frequency_hz)))
     return spectral_response(frequency_hz, modal_mass_kg, zeta, none, spectrum,

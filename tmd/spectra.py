@@ -36,7 +36,8 @@ class ForceSpectrum(Protocol):
     f_max_hz: float
     breakpoints_hz: tuple[float, ...]
 
-    def __call__(self, frequency_hz: np.ndarray) -> np.ndarray: ...
+    def __call__(self, frequency_hz: np.ndarray) -> np.ndarray:
+        """Evaluate S_F(f) [N^2/Hz] on an array of frequencies [Hz], zero outside the support."""
 
 
 @dataclass(frozen=True)
@@ -49,6 +50,9 @@ class WhiteSpectrum:
         One-sided PSD G [N^2/Hz]. A two-sided PSD S0 per rad/s is G = 4 pi S0.
     f_min_hz, f_max_hz : float
         Support [Hz]; defaults 0 and infinity.
+    breakpoints_hz : tuple of float
+        Frequencies where the spectrum is not smooth [Hz]; the engine puts
+        panel edges there. Empty by default.
     """
 
     level: float
@@ -57,6 +61,18 @@ class WhiteSpectrum:
     breakpoints_hz: tuple[float, ...] = ()
 
     def __call__(self, frequency_hz):
+        """Evaluate S_F(f) [N^2/Hz], zero outside the support.
+
+        Parameters
+        ----------
+        frequency_hz : array
+            f [Hz], any shape.
+
+        Returns
+        -------
+        numpy.ndarray
+            One-sided modal force PSD [N^2/Hz], of the shape of ``frequency_hz``.
+        """
         f = np.asarray(frequency_hz, dtype=float)
         inside = (f >= self.f_min_hz) & (f <= self.f_max_hz)
         return np.where(inside, self.level, 0.0)
@@ -76,6 +92,16 @@ class FirstOrderSpectrum:
         One-sided PSD at zero frequency G [N^2/Hz].
     corner_hz : float
         Corner frequency f_c [Hz].
+    f_min_hz, f_max_hz : float
+        Support [Hz]; defaults 0 and infinity.
+    breakpoints_hz : tuple of float
+        Frequencies where the spectrum is not smooth [Hz]; the engine puts
+        panel edges there. Empty by default.
+
+    References
+    ----------
+    The first-order (Ornstein-Uhlenbeck) spectrum, common practice (any
+    random vibration text).
     """
 
     level: float
@@ -85,6 +111,18 @@ class FirstOrderSpectrum:
     breakpoints_hz: tuple[float, ...] = ()
 
     def __call__(self, frequency_hz):
+        """Evaluate S_F(f) [N^2/Hz], zero outside the support.
+
+        Parameters
+        ----------
+        frequency_hz : array
+            f [Hz], any shape.
+
+        Returns
+        -------
+        numpy.ndarray
+            One-sided modal force PSD [N^2/Hz], of the shape of ``frequency_hz``.
+        """
         f = np.asarray(frequency_hz, dtype=float)
         inside = (f >= self.f_min_hz) & (f <= self.f_max_hz)
         return np.where(inside, self.level / (1.0 + (f / self.corner_hz) ** 2), 0.0)
@@ -127,17 +165,32 @@ class TabulatedSpectrum:
 
     @property
     def f_min_hz(self) -> float:
+        """Lowest tabulated frequency [Hz]; the spectrum is zero below it."""
         return float(self.frequency_hz[0])
 
     @property
     def f_max_hz(self) -> float:
+        """Highest tabulated frequency [Hz]; the spectrum is zero above it."""
         return float(self.frequency_hz[-1])
 
     @property
     def breakpoints_hz(self) -> tuple[float, ...]:
+        """Every tabulated frequency [Hz]: the interpolant's slope changes there."""
         return tuple(self.frequency_hz.tolist())
 
     def __call__(self, frequency_hz):
+        """Evaluate S_F(f) [N^2/Hz], zero outside the support.
+
+        Parameters
+        ----------
+        frequency_hz : array
+            f [Hz], any shape.
+
+        Returns
+        -------
+        numpy.ndarray
+            One-sided modal force PSD [N^2/Hz], of the shape of ``frequency_hz``.
+        """
         f = np.asarray(frequency_hz, dtype=float)
         inside = (f >= self.f_min_hz) & (f <= self.f_max_hz)
         logf = np.log(np.where(inside, f, self.f_min_hz))
@@ -145,7 +198,19 @@ class TabulatedSpectrum:
         return np.where(inside, value, 0.0)
 
     def variance(self) -> float:
-        """Force variance [N^2], the exact integral of the log-log interpolant."""
+        """Return the force variance [N^2], the exact integral of the log-log interpolant.
+
+        Returns
+        -------
+        float
+            sigma_F^2 = integral of S_F(f) df over the table's range [N^2].
+
+        Notes
+        -----
+        On each interval S = s0 (f / f0)^b, b = ln(s1/s0) / ln(f1/f0), whose
+        integral is s0 f0 ((f1/f0)^(b+1) - 1) / (b + 1), or s0 f0 ln(f1/f0)
+        for b = -1.
+        """
         f, s = self.frequency_hz, self.psd_n2_per_hz
         slope = np.diff(np.log(s)) / np.diff(np.log(f))
         f0, f1, s0 = f[:-1], f[1:], s[:-1]
@@ -161,7 +226,25 @@ def table_problem(frequency_hz: np.ndarray, psd: np.ndarray, *, first_row: int =
                   row_word: str = "row") -> str:
     """Describe what is wrong with a spectrum table, or return '' if nothing.
 
-    Rows are numbered from ``first_row`` (a CSV's first data line is line 2).
+    Parameters
+    ----------
+    frequency_hz : numpy.ndarray
+        Tabulated frequencies [Hz]; must be 1-D, finite, > 0 and strictly
+        increasing.
+    psd : numpy.ndarray
+        One-sided PSD values of the same length [N^2/Hz, or the unit of the
+        table]; must be finite and > 0.
+    first_row : int
+        Number of the table's first row in messages (a CSV's first data line
+        is line 2).
+    row_word : str
+        What a row is called in messages ("row", "line").
+
+    Returns
+    -------
+    str
+        The first problem found, naming the row, the value and what is
+        allowed; '' when the table is usable.
     """
     if frequency_hz.ndim != 1 or frequency_hz.shape != psd.shape:
         return "frequency and PSD columns must be 1-D and of equal length"
@@ -194,7 +277,7 @@ _NUMBER = re.compile(r"[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?")
 
 
 def read_text_file(path: str | Path, what: str) -> str:
-    """The text of an input file: UTF-8, with or without a byte-order mark.
+    """Return the text of an input file: UTF-8, with or without a byte-order mark.
 
     Parameters
     ----------
@@ -231,7 +314,7 @@ def read_text_file(path: str | Path, what: str) -> str:
 
 
 def _number(path: Path, line: int, column: str, text: str) -> float:
-    """A plain decimal number: no underscores, hex, nan or inf, as a spreadsheet writes it."""
+    """Parse a plain decimal number: no underscores, hex, nan or inf, as a spreadsheet writes it."""
     text = text.strip()
     if not _NUMBER.fullmatch(text):
         raise SpectrumFileError(f"{path}: line {line}: {column} = {text!r}: must be a plain "
@@ -292,7 +375,17 @@ def _true_line(problem: str, lines: list[int]) -> str:
 
 
 def write_force_psd_csv(path: str | Path, frequency_hz, psd_n2_per_hz) -> None:
-    """Write a table in the format :func:`read_force_psd_csv` reads."""
+    """Write a table in the format :func:`read_force_psd_csv` reads.
+
+    Parameters
+    ----------
+    path : str or Path
+        The CSV file to write [path]; it is created or replaced.
+    frequency_hz : sequence of float
+        Frequencies [Hz].
+    psd_n2_per_hz : sequence of float
+        One-sided modal force PSD at those frequencies [N^2/Hz].
+    """
     with open(path, "w", newline="", encoding="utf-8") as handle:
         writer = csv.writer(handle)
         writer.writerow(CSV_HEADER)
