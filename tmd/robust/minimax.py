@@ -58,6 +58,19 @@ class BandTuning:
     ``value`` is the largest peak acceleration over the optimiser's grid
     [m/s^2] (inf when the stroke limit cannot be held); ``peak_stroke_m`` the
     largest peak stroke over it [m].
+
+    Parameters
+    ----------
+    frequency_ratio : float
+        f_d / f_s [-], relative to the nominal structure.
+    damping_ratio : float
+        zeta_d [-], referred to the damper's own frequency.
+    value : float
+        Largest peak acceleration over the optimiser's grid of s [m/s^2].
+    peak_stroke_m : float
+        Largest peak stroke relative to the structure over that grid [m].
+    stroke_limited : bool
+        True when the stroke limit is active at the optimum.
     """
 
     frequency_ratio: float
@@ -73,6 +86,22 @@ class RobustSizing:
 
     ``governed_by`` is "target", "stroke", "mass" or "bare" as in
     :class:`tmd.design.Sizing`; ``meets_target`` holds across the whole band.
+
+    Parameters
+    ----------
+    design : TmdDesign or None
+        The robust design evaluated on the nominal structure (s = 1); None
+        when no damper is needed.
+    frequency_band : float
+        Half-width b of the band s in [1 - b, 1 + b] [-].
+    band_maximum : BandMaximum or None
+        The worst peak acceleration over the band and where it occurs.
+    meets_target : bool
+        Whether the target is met at every s in the band.
+    governed_by : str
+        What decided the mass: "target", "stroke", "mass" or "bare".
+    message : str
+        The outcome in one plain sentence.
     """
 
     design: TmdDesign | None
@@ -94,6 +123,7 @@ def tune_for_band(loaded: LoadedMode, mass_ratio: float, frequency_factors, *,
     Parameters
     ----------
     loaded : LoadedMode
+        The mode under its design load, with the reporting conventions.
     mass_ratio : float
         mu = m_d / M* [-].
     frequency_factors : array
@@ -181,15 +211,18 @@ def robust_least_mass(loaded: LoadedMode, target_peak_m_s2: float, frequency_ban
     Parameters
     ----------
     loaded : LoadedMode
+        The mode under its design load, with the reporting conventions.
     target_peak_m_s2 : float
         Peak acceleration target at the evaluation height [m/s^2].
     frequency_band : float
         Half-width b of the band s in [1 - b, 1 + b] [-]; 0 gives the nominal
         least-mass design.
-    max_mass_ratio, min_mass_ratio : float
-        Search range of the mass ratio [-].
+    max_mass_ratio : float
+        Largest mass ratio m_d / M* searched [-].
     max_stroke_m : float, optional
         Peak stroke limit [m], held across the band.
+    min_mass_ratio : float
+        Smallest mass ratio searched [-].
     structure_damping_ratio : callable, optional
         zeta_s(s) [-].
     optimiser_points : int

@@ -195,6 +195,7 @@ def probabilistic_study(loaded: LoadedMode, nominal: TunedMassDamper, target_pea
     Parameters
     ----------
     loaded : LoadedMode
+        The mode under its design load, with the reporting conventions.
     nominal, robust : TunedMassDamper
         The nominal design and (optionally) the band-robust one.
     target_peak_m_s2 : float
@@ -251,6 +252,7 @@ def exceedance_probability(loaded: LoadedMode, damper: TunedMassDamper | None,
     Parameters
     ----------
     loaded : LoadedMode
+        The mode under its design load, with the reporting conventions.
     damper : TunedMassDamper or None
         The design (absolute m_d, k_d, c_d kept); None for the bare building.
     target_peak_m_s2 : float

@@ -34,6 +34,7 @@ def robustness_study(loaded: LoadedMode, nominal: TunedMassDamper, target_peak_m
     Parameters
     ----------
     loaded : LoadedMode
+        The mode under its design load, with the reporting conventions.
     nominal : TunedMassDamper
         The design sized for the nominal structure (e.g. from
         :func:`tmd.design.least_mass`).
@@ -124,6 +125,7 @@ def design_sweeps(loaded: LoadedMode, damper: TunedMassDamper, *,
     Parameters
     ----------
     loaded : LoadedMode
+        The mode under its design load, with the reporting conventions.
     damper : TunedMassDamper
         The design, relative to the nominal mode.
     frequency_band : float
@@ -160,13 +162,23 @@ def design_sweeps(loaded: LoadedMode, damper: TunedMassDamper, *,
 
 
 def robust_design_block(sizing: RobustSizing) -> dict:
-    """The ``band_design`` block of results.json.
+    """Return the ``band_design`` block of results.json.
 
     The fields of the ``design`` block (the design evaluated on the nominal
     structure, s = 1; all None when no damper is needed) plus
     ``frequency_band`` [-], ``peak_acceleration_band_max_m_s2``,
     ``worst_structure_frequency_factor`` [-], ``meets_target_across_band``,
     ``governed_by`` and ``message``.
+
+    Parameters
+    ----------
+    sizing : RobustSizing
+        Outcome of :func:`tmd.robust.minimax.robust_least_mass`.
+
+    Returns
+    -------
+    dict
+        The block, keys with their SI unit as in the ``design`` block.
     """
     block = design_block(sizing.design)
     worst = sizing.band_maximum
@@ -182,6 +194,6 @@ def robust_design_block(sizing: RobustSizing) -> dict:
 
 
 def _check_band(frequency_band, sweep_range) -> None:
-    """The case file's rules for the band and the sweep range (tmd.rules)."""
+    """Check the band and the sweep range by the case file's rules (tmd.rules)."""
     require("frequency_band", frequency_band, Band)
     require("sweep_range", sweep_range, SweepRange)

@@ -54,13 +54,33 @@ class AerodynamicDamping:
     aerodynamic_ratio: float
 
     def __call__(self, frequency_factor):
+        """Return zeta_s(s) = structural + aerodynamic / s [-].
+
+        Parameters
+        ----------
+        frequency_factor : float or array
+            s = f_s' / f_s [-], > 0.
+
+        Returns
+        -------
+        float or numpy.ndarray
+            The structure's damping ratio at each s [-].
+        """
         s = np.asarray(frequency_factor, float)
         return self.structural_ratio + self.aerodynamic_ratio / s
 
 
 @dataclass(frozen=True)
 class BandMaximum:
-    """The worst peak acceleration over a band of structure frequency factors."""
+    """The worst peak acceleration over a band of structure frequency factors.
+
+    Parameters
+    ----------
+    peak_acceleration_m_s2 : float
+        Largest peak acceleration at the evaluation height over the band [m/s^2].
+    structure_frequency_factor : float
+        s = f_s' / f_s [-] at which it occurs.
+    """
 
     peak_acceleration_m_s2: float
     structure_frequency_factor: float
@@ -77,6 +97,7 @@ def sweep_structure_frequency(loaded: LoadedMode, damper: TunedMassDamper | None
     Parameters
     ----------
     loaded : LoadedMode
+        The mode under its design load, with the reporting conventions.
     damper : TunedMassDamper or None
         The design (absolute m_d, k_d, c_d kept as s varies); None for the
         bare building.
@@ -122,7 +143,9 @@ def sweep_damper_frequency(loaded: LoadedMode, damper: TunedMassDamper, *,
     Parameters
     ----------
     loaded : LoadedMode
+        The mode under its design load, with the reporting conventions.
     damper : TunedMassDamper
+        The TMD by mass ratio, frequency ratio and damping ratio (relative to the mode).
     spring_range : float
         Half-width of the spring stiffness factor k_d'/k_d in
         [1 - r, 1 + r] [-] (default +/-10%, an as-built tolerance).
@@ -163,7 +186,9 @@ def sweep_damper_damping(loaded: LoadedMode, damper: TunedMassDamper, *,
     Parameters
     ----------
     loaded : LoadedMode
+        The mode under its design load, with the reporting conventions.
     damper : TunedMassDamper
+        The TMD by mass ratio, frequency ratio and damping ratio (relative to the mode).
     dashpot_range : float
         Half-width of the dashpot factor c_d'/c_d in [1 - r, 1 + r] [-]
         (default +/-30%).
@@ -198,6 +223,7 @@ def peak_acceleration_band_max(loaded: LoadedMode, damper: TunedMassDamper | Non
     Parameters
     ----------
     loaded : LoadedMode
+        The mode under its design load, with the reporting conventions.
     damper : TunedMassDamper or None
         None for the bare building.
     frequency_band : float
@@ -270,7 +296,26 @@ def band_maximum(peak_of_factors: Callable[[np.ndarray], np.ndarray], frequency_
 # --- pure numpy helpers -------------------------------------------------------
 
 def factor_grid(half_range: float, points: int) -> np.ndarray:
-    """Factors 1 + r linspace(-1, 1, n), n odd, with the centre exactly 1."""
+    """Return the factors 1 + r linspace(-1, 1, n), n odd, with the centre exactly 1.
+
+    Parameters
+    ----------
+    half_range : float
+        r >= 0, half-width of the band of factors [-] (e.g. 0.15 for +-15%).
+    points : int
+        Number of factors; an even number is raised by one so that s = 1 is
+        a grid point.
+
+    Returns
+    -------
+    numpy.ndarray
+        The factors s [-], increasing; ``[1.0]`` when ``half_range`` is 0.
+
+    Raises
+    ------
+    ValueError
+        If ``half_range`` is negative.
+    """
     if half_range < 0:
         raise ValueError(f"a sweep range must be >= 0, got {half_range!r}")
     if half_range == 0:
@@ -282,7 +327,7 @@ def factor_grid(half_range: float, points: int) -> np.ndarray:
 
 
 def structure_damping_ratios(loaded: LoadedMode, factors, structure_damping_ratio=None):
-    """zeta_s at each structure frequency factor [-].
+    """Return zeta_s at each structure frequency factor [-].
 
     Parameters
     ----------
@@ -307,7 +352,27 @@ def structure_damping_ratios(loaded: LoadedMode, factors, structure_damping_rati
 
 def assess_structure_factors(loaded: LoadedMode, damper: TunedMassDamper | None, factors,
                              structure_damping_ratio=None):
-    """One engine call over structure frequency factors; returns (Assessment, zeta_s)."""
+    """Assess one damper (or none) over structure frequency factors in one engine call.
+
+    Parameters
+    ----------
+    loaded : LoadedMode
+        The mode under its design load, with the reporting conventions.
+    damper : TunedMassDamper or None
+        The TMD, its absolute mass, frequency and damping fixed as s moves;
+        None for the bare structure.
+    factors : array
+        Structure frequency factors s = f_s' / f_s [-].
+    structure_damping_ratio : callable, optional
+        zeta_s(s) [-] replacing the loaded mode's own band definition.
+
+    Returns
+    -------
+    assessment : Assessment
+        Responses at every factor (batch shape that of ``factors``).
+    zeta_s : numpy.ndarray
+        The structure's damping ratio used at each factor [-].
+    """
     s = np.asarray(factors, float)
     zeta_s = structure_damping_ratios(loaded, s, structure_damping_ratio)
     m = loaded.mode
