@@ -106,3 +106,36 @@ def test_sector_probability_rules_are_exit_2(tmp_path, north, west, expected):
     result = runner.invoke(app, ["design", str(path), "--out", str(tmp_path / "o")])
     assert result.exit_code == 2
     assert str(path) in result.output and expected in " ".join(result.output.split())
+
+
+ACROSS = WIND.replace('name = "west"', 'name = "west"\nacross_wind = true')
+
+
+def test_across_wind_sector_adds_the_published_model_on_the_cross_wind_mode(tmp_path):
+    # Wind from the west travels along +x: the x mode is along the wind, the y
+    # mode across it. The y mode's force is then the across-wind generalised
+    # force of the AIJ-RLB 2004 model (tmd.wind.acrosswind's stable interface,
+    # phi = z / H: eta = 1 / H), the x mode's force is the along-wind strip
+    # force unchanged, and the two are uncorrelated (the stated assumption).
+    from tmd.wind import Site
+    from tmd.wind.acrosswind import generalised_force_psd
+
+    path = tmp_path / "a.toml"
+    path.write_text(ACROSS.format(period=10, north="", west=""))
+    across = load_building_case(path)
+    plain = load_building_case(_case(tmp_path, 10))
+    west = across.loads_by_period[10][1].spectrum
+    f = west.frequency_hz
+    top = float(Site(terrain="III", basic_speed_m_s=28.0).mean_speed(120.0, 10.0))
+    expected = generalised_force_psd(f, breadth_m=20.0, depth_m=30.0, height_m=120.0,
+                                     top_mean_speed_m_s=top, mode_shape=lambda z: z / 120.0)
+    np.testing.assert_allclose(west.matrix[:, 1, 1].real, expected, rtol=1e-9)
+    np.testing.assert_allclose(west.matrix[:, 0, 0], plain.loads_by_period[10][1].spectrum
+                               .matrix[:, 0, 0], rtol=1e-12)
+    assert np.all(west.matrix[:, 0, 1] == 0)
+    # The north sector did not ask for it: unchanged.
+    np.testing.assert_array_equal(across.loads_by_period[10][0].spectrum.matrix,
+                                  plain.loads_by_period[10][0].spectrum.matrix)
+    note = next(n for n in across.notes if "Across-wind forces" in n)
+    assert "uncorrelated with the along-wind" in note and "often correlated" in note
+    assert "not verified" in note

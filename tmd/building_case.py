@@ -31,7 +31,7 @@ from tmd.building_modes import (
     PlanPoint,
     unit_component_problem,
 )
-from tmd.building_wind import strip_cross_spectrum, wind_travel_vector
+from tmd.building_wind import across_wind_problems, strip_cross_spectrum, wind_travel_vector
 from tmd.case import CaseError, WindTable
 from tmd.cross_spectra import (
     CrossSpectrum,
@@ -41,6 +41,7 @@ from tmd.cross_spectra import (
 )
 from tmd.spectra import SpectrumFileError, read_force_psd_csv
 from tmd.wind import Site
+from tmd.wind.acrosswind import NOT_VERIFIED
 
 Positive = Annotated[float, Field(gt=0, allow_inf_nan=False)]
 Finite = Annotated[float, Field(allow_inf_nan=False)]
@@ -68,6 +69,11 @@ STRIP_NOTE = (
     "correlated forces but no torsional moment and no across-wind force. Torsional and "
     "across-wind response governs many tall buildings: supply those loads from wind-tunnel "
     "data.")
+ACROSS_NOTE = (
+    "Across-wind forces of {sectors} come from the AIJ-RLB 2004 model (" + NOT_VERIFIED + "), "
+    "fully correlated between the sway modes as the model assumes, and are taken as "
+    "uncorrelated with the along-wind forces. There is still no torsional load; torsional and "
+    "across-wind loads are in fact often correlated: wind-tunnel data govern.")
 
 
 class _Table(BaseModel):
@@ -133,6 +139,7 @@ class DirectionEntry(_Table):
     drag_coefficient: Positive
     c_dir: Annotated[float, Field(gt=0, le=1, allow_inf_nan=False)] = 1.0
     probability: Share | None = None
+    across_wind: bool = False
 
 
 class BuildingTargetTable(_Table):
@@ -465,21 +472,27 @@ def _wind_case(path: Path, table: BuildingCaseTable, model: BuildingModel, commo
     for d in table.wind_directions:
         name = d.name or f"{d.direction_deg:g} deg"
         directions.append({"name": name, "direction_deg": d.direction_deg, "c_dir": d.c_dir,
-                           "probability": d.probability,
+                           "probability": d.probability, "across_wind": d.across_wind,
                            "speed_rule": "c_dir" if d.probability is None
                            else "sector probability"})
+    problems = []
     for period in periods:
         loads = []
         for k, d in enumerate(table.wind_directions):
             site = _site(path, w, d.c_dir)
             sector_period = period if d.probability is None else d.probability * period
             travel = wind_travel_vector(d.direction_deg, table.plan.orientation_deg)
+            size = dict(height_m=model.plan.height_m, breadth_m=d.breadth_m, depth_m=d.depth_m,
+                        travel=travel, return_period_years=sector_period)
             try:
                 spectrum = strip_cross_spectrum(
-                    site, model.modes, height_m=model.plan.height_m, breadth_m=d.breadth_m,
-                    depth_m=d.depth_m, drag_coefficient=d.drag_coefficient, travel=travel,
-                    return_period_years=sector_period, spectrum=w.spectrum,
-                    coherence=w.coherence, n_strips=w.n_strips)
+                    site, model.modes, drag_coefficient=d.drag_coefficient, spectrum=w.spectrum,
+                    coherence=w.coherence, n_strips=w.n_strips, across_wind=d.across_wind,
+                    **size)
+                if d.across_wind:
+                    problems += [f"[[wind_directions]] {k + 1} ({directions[k]['name']}), "
+                                 f"T = {period:g} yr: {p}"
+                                 for p in across_wind_problems(site, model.modes, **size)]
             except ValueError as exc:
                 raise CaseError(f"{path}: [[wind_directions]] {k + 1}: {exc}") from None
             loads.append(BuildingLoad(directions[k]["name"], spectrum, model.damping_ratio))
@@ -487,10 +500,20 @@ def _wind_case(path: Path, table: BuildingCaseTable, model: BuildingModel, commo
     return BuildingCase(design_loads=loads_by_period[table.target.return_period_years],
                         loads_by_period=loads_by_period,
                         target_return_period_years=table.target.return_period_years,
-                        notes=(STRIP_NOTE,) + ((SECTOR_RULE,) if any(
-                            d.probability is not None for d in table.wind_directions) else ()),
+                        notes=_wind_notes(table.wind_directions, directions, problems),
                         directions=tuple(directions),
                         input_files=(path.resolve(),), **common)
+
+
+def _wind_notes(entries: list[DirectionEntry], directions: list[dict], problems: list[str]):
+    across = [d["name"] for d, e in zip(directions, entries, strict=True) if e.across_wind]
+    notes = [STRIP_NOTE]
+    if across:
+        notes.append(ACROSS_NOTE.format(sectors="the sectors " + ", ".join(across)
+                                        if len(across) > 1 else f"the sector {across[0]}"))
+    if any(e.probability is not None for e in entries):
+        notes.append(SECTOR_RULE)
+    return tuple(notes + problems)
 
 
 def _check_sector_probabilities(path: Path, directions: list[DirectionEntry]) -> None:

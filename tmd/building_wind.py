@@ -12,8 +12,20 @@ the strip double sums (:func:`tmd.loads.generalized_force_psd`) with two
 different weights, S_ij = w_i^T C w_j. The root-coherence is real, so S_ij
 is real; it follows from the one-mode quadratic form by polarisation,
 S_ij = (S(psi_i + psi_j) - S(psi_i) - S(psi_j)) / 2. The drag through the origin
-gives no torsional moment: torsional and across-wind loads are not in this
-model (give them as tables).
+gives no torsional moment.
+
+On request, a sector adds the across-wind forces of the published model of
+:mod:`tmd.wind.acrosswind` (AIJ-RLB 2004): the base-moment spectrum S_M(f)
+of the face normal to the wind, turned into each mode's generalised force
+through that mode's sway across the wind, chi_i(z) = phi_x,i(z) c_x +
+phi_y,i(z) c_y with c = (-e_y, e_x) (the travel direction turned a quarter
+turn anticlockwise; the sign only fixes the modes' relative sign). The model
+takes the across-wind force as fully correlated over the height, so
+S_ij = eta_i eta_j S_M(f) with eta_i = Q_i / M from
+:func:`tmd.wind.acrosswind.mode_shape_correction`. The across-wind forces are
+taken as uncorrelated with the along-wind ones (the matrices add), and there
+is still no torsional load: torsional and across-wind loads are in fact often
+correlated, which only wind-tunnel data settle.
 
 Wind direction is where the wind comes from, in degrees clockwise from north;
 the building's orientation is the bearing of its +y axis, clockwise from
@@ -41,6 +53,7 @@ from tmd.loads import (
     height_strips,
     reference_height,
 )
+from tmd.wind import acrosswind
 from tmd.wind.turbulence import velocity_spectrum
 
 
@@ -67,7 +80,8 @@ def strip_cross_spectrum(site, modes: tuple[BuildingMode, ...], *, height_m: flo
                          breadth_m: float, depth_m: float, drag_coefficient: float,
                          travel: np.ndarray, return_period_years: float,
                          spectrum: str = "eurocode", coherence: str = "exponential",
-                         n_strips: int = 40, frequency_hz=None) -> TabulatedCrossSpectrum:
+                         n_strips: int = 40, frequency_hz=None,
+                         across_wind: bool = False) -> TabulatedCrossSpectrum:
     """Modal force cross-spectral matrix of one wind direction [N^2/Hz].
 
     Parameters
@@ -92,11 +106,14 @@ def strip_cross_spectrum(site, modes: tuple[BuildingMode, ...], *, height_m: flo
         Strips over the height.
     frequency_hz : array, optional
         Table frequencies [Hz]; default as :func:`tmd.loads.modal_force_spectrum`.
+    across_wind : bool
+        Add the across-wind forces (:func:`across_wind_matrix`), taken as
+        uncorrelated with the along-wind ones.
 
     Returns
     -------
     TabulatedCrossSpectrum
-        A mode with no sway along the wind gets a zero row.
+        A mode with no sway along (or across) the wind gets a zero row.
     """
     f = DEFAULT_FREQUENCY_HZ if frequency_hz is None else np.asarray(frequency_hz, float)
     building = Building(height_m, breadth_m, depth_m, drag_coefficient)
@@ -124,6 +141,118 @@ def strip_cross_spectrum(site, modes: tuple[BuildingMode, ...], *, height_m: flo
                 cross = 0.5 * (form(weights[i] + weights[j]) - matrix[:, i, i].real
                                - matrix[:, j, j].real)
                 matrix[:, i, j] = matrix[:, j, i] = cross
-    return TabulatedCrossSpectrum(f, matrix, source=(
-        f"along-wind strip model: {spectrum} spectrum, {coherence} coherence, "
-        f"T = {return_period_years:g} yr, {n_strips} strips"))
+    source = (f"along-wind strip model: {spectrum} spectrum, {coherence} coherence, "
+              f"T = {return_period_years:g} yr, {n_strips} strips")
+    if across_wind:
+        matrix = matrix + across_wind_matrix(
+            site, modes, height_m=height_m, breadth_m=breadth_m, depth_m=depth_m,
+            travel=travel, return_period_years=return_period_years, frequency_hz=f)
+        source += f"; across-wind: {acrosswind.SOURCE}"
+    return TabulatedCrossSpectrum(f, matrix, source=source)
+
+
+def _across(travel) -> np.ndarray:
+    """The plan unit vector across the wind: the travel direction turned a quarter turn
+    anticlockwise."""
+    return np.array([-travel[1], travel[0]])
+
+
+def across_wind_matrix(site, modes: tuple[BuildingMode, ...], *, height_m: float,
+                       breadth_m: float, depth_m: float, travel: np.ndarray,
+                       return_period_years: float, frequency_hz) -> np.ndarray:
+    """Across-wind modal force cross-spectral matrix of one wind direction [N^2/Hz].
+
+    Parameters
+    ----------
+    site : tmd.wind.Site
+        The site, with any directional factor already applied to its speed.
+    modes : tuple of BuildingMode
+        The modes.
+    height_m : float
+        Building height H [m].
+    breadth_m, depth_m : float
+        Face breadth B normal to this wind and depth D along it [m].
+    travel : array (2,)
+        Unit vector the wind travels along (:func:`wind_travel_vector`).
+    return_period_years : float
+        Return period of the mean wind speed [years].
+    frequency_hz : array (F,)
+        Frequencies [Hz], > 0.
+
+    Returns
+    -------
+    array (F, n, n), real
+        eta_i eta_j S_M(f): S_M from :func:`tmd.wind.acrosswind.base_moment_psd`
+        at the top mean speed U_H, eta_i the mode-shape correction of mode i's
+        sway across the wind (fully correlated over the height, so coherence 1
+        between the modes).
+    """
+    f = np.asarray(frequency_hz, float)
+    eta = across_wind_corrections(modes, height_m, travel)
+    top = float(site.mean_speed(height_m, return_period_years))
+    moment = acrosswind.base_moment_psd(f, breadth_m=breadth_m, depth_m=depth_m,
+                                        height_m=height_m, top_mean_speed_m_s=top,
+                                        air_density_kg_m3=site.air_density_kg_m3)
+    return moment[:, None, None] * np.outer(eta, eta)[None, :, :]
+
+
+def across_wind_corrections(modes: tuple[BuildingMode, ...], height_m: float,
+                            travel: np.ndarray) -> np.ndarray:
+    """eta_i = Q_i / M of every mode's sway across the wind [1/m].
+
+    Parameters
+    ----------
+    modes : tuple of BuildingMode
+        The modes.
+    height_m : float
+        H [m].
+    travel : array (2,)
+        Unit vector the wind travels along.
+
+    Returns
+    -------
+    array (n,)
+        :func:`tmd.wind.acrosswind.mode_shape_correction` of chi_i(z); zero
+        for a mode with no sway across the wind (below 1e-12 at 41 heights).
+    """
+    across = _across(travel)
+    z = np.linspace(0.0, height_m, 41)
+    # As the strip model's rows: a sway below 1e-12 across the wind (a rounding
+    # of the direction's sine or cosine) counts as none.
+    return np.array([acrosswind.mode_shape_correction(
+        height_m, lambda z, m=m: float(m.shape.values(z)[:2] @ across))
+        if np.max(np.abs(m.shape.values(z)[:, :2] @ across)) > 1e-12 else 0.0 for m in modes])
+
+
+def across_wind_problems(site, modes: tuple[BuildingMode, ...], *, height_m: float,
+                         breadth_m: float, depth_m: float, travel: np.ndarray,
+                         return_period_years: float) -> list[str]:
+    """Inputs outside the across-wind model's range for one wind direction (empty if none).
+
+    Parameters
+    ----------
+    site : tmd.wind.Site
+        The site.
+    modes : tuple of BuildingMode
+        The modes.
+    height_m, breadth_m, depth_m : float
+        H, B (normal to the wind), D [m].
+    travel : array (2,)
+        Unit vector the wind travels along.
+    return_period_years : float
+        Return period [years].
+
+    Returns
+    -------
+    list of str
+        :func:`tmd.wind.acrosswind.validity_problems`, the reduced velocity
+        taken for every mode that sways across the wind.
+    """
+    eta = across_wind_corrections(modes, height_m, travel)
+    swaying = np.abs(eta) > 1e-9 * max(float(np.max(np.abs(eta))), 1e-300)
+    top = float(site.mean_speed(height_m, return_period_years))
+    width = math.sqrt(breadth_m * depth_m)
+    frequencies = np.array([m.frequency_hz for m in modes])[swaying]
+    return acrosswind.validity_problems(
+        side_ratio=depth_m / breadth_m, aspect_ratio=height_m / width,
+        reduced_velocity=top / (frequencies * width) if frequencies.size else None)
