@@ -177,3 +177,58 @@ def test_stroke_return_period_key_is_validated(tmp_path, extra, message):
     path.write_text(WIND_CASE.replace("max_stroke_m = 1.0\n", "") + extra, encoding="utf-8")
     with pytest.raises(CaseError, match="max_stroke_m"):
         read_case(path)
+
+
+def _band_strokes(load, damper, factors):
+    from tmd.robust.sweeps import assess_structure_factors
+
+    a, _ = assess_structure_factors(load, damper, factors)
+    return np.asarray(a.peak_stroke_m)[..., 0]
+
+
+@pytest.mark.filterwarnings("ignore:.*top decade")  # the test load is cut at 5 Hz
+def test_band_robust_design_holds_the_stroke_limit_at_the_stroke_load():
+    from tmd.robust import robust_least_mass
+    from tmd.robust.sweeps import factor_grid
+
+    design_load, extreme = _load(1e8), _load(6e8)
+    target = 0.7 * evaluate_tmd(design_load, TunedMassDamper(1e-6, 1.0, 0.1)
+                                ).peak_acceleration_m_s2
+    kw = dict(max_mass_ratio=0.05, optimiser_points=9, check_points=41)
+    free = robust_least_mass(design_load, target, 0.1, **kw)
+    grid = factor_grid(0.1, 9)
+    limit = 0.8 * float(np.max(_band_strokes(extreme, free.design.damper, grid)))
+    held = robust_least_mass(design_load, target, 0.1, max_stroke_m=limit,
+                             stroke_loads=(extreme,), **kw)
+    assert free.meets_target and held.meets_target
+    # The design load's own strokes are far below the limit (the load is 6x weaker, so
+    # sigma about sqrt(6)x smaller): only the second load can bind.
+    assert np.max(_band_strokes(design_load, free.design.damper, grid)) < 0.6 * limit
+    # The limit holds under the second load at every s of the optimiser's grid (SLSQP
+    # feasibility 1e-6, tmd.robust.minimax), and costs mass.
+    assert np.max(_band_strokes(extreme, held.design.damper, grid)) <= limit * (1 + 1e-6)
+    assert held.design.mass_ratio > free.design.mass_ratio
+
+
+@pytest.mark.filterwarnings("ignore:.*top decade")  # the test load is cut at 5 Hz
+def test_bank_holds_the_stroke_limit_at_the_stroke_load():
+    from tmd.sizing.bank import BankSettings, size_tmd_bank
+
+    design_load, extreme = _load(1e8), _load(6e8)
+    target = 0.7 * evaluate_tmd(design_load, TunedMassDamper(1e-6, 1.0, 0.1)
+                                ).peak_acceleration_m_s2
+    settings = BankSettings(frequency_ratios=(0.96, 1.0), damping_ratios=(0.08,))
+
+    def strokes(bank, load):
+        return np.asarray(load.assess(bank.absorbers).peak_stroke_m).ravel()
+
+    free = size_tmd_bank(design_load, target, max_mass_ratio=0.05, settings=settings)
+    limit = 0.8 * float(np.max(strokes(free, extreme)))
+    held = size_tmd_bank(design_load, target, max_mass_ratio=0.05, max_stroke_m=limit,
+                         settings=settings, stroke_loads=(extreme,))
+    assert free.meets_target and held.meets_target
+    assert np.max(strokes(free, design_load)) < 0.6 * limit
+    # Every member's peak stroke under the second load within the limit (the engine's
+    # re-check, tolerance 1e-9 in tmd.sizing.bank), at more mass than the free bank.
+    assert np.max(strokes(held, extreme)) <= limit * (1 + 1e-9)
+    assert held.mass_ratio > free.mass_ratio

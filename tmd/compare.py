@@ -74,6 +74,7 @@ class _Job:
     band: float
     settings: OptionSettings
     _tmd: Sizing | None = None
+    stroke_loads: tuple[LoadedMode, ...] = ()
 
     def tmd_sizing(self) -> Sizing:
         if self._tmd is None:
@@ -89,7 +90,8 @@ def compare_options(loaded: LoadedMode, target_peak_m_s2: float, *, enabled=None
                     max_mass_ratio: float = MAX_MASS_RATIO, max_stroke_m: float | None = None,
                     frequency_band: float = FREQUENCY_BAND,
                     settings: OptionSettings | None = None,
-                    tmd_sizing: Sizing | None = None) -> list[dict]:
+                    tmd_sizing: Sizing | None = None,
+                    stroke_loads: tuple[LoadedMode, ...] = ()) -> list[dict]:
     """Size every enabled passive option and describe each in one dict.
 
     Parameters
@@ -113,6 +115,10 @@ def compare_options(loaded: LoadedMode, target_peak_m_s2: float, *, enabled=None
         The case's own TMD sizing (fixed mass ratio and objective, or least
         mass), so that the TMD and pendulum rows are the design job's TMD;
         by default the least mass with ``max_stroke_m``.
+    stroke_loads : tuple of LoadedMode
+        Further loads under which the bank holds ``max_stroke_m`` too (the
+        wind of ``[damper] stroke_return_period_years``); ``tmd_sizing``
+        carries the TMD's own.
 
     Returns
     -------
@@ -143,7 +149,7 @@ def compare_options(loaded: LoadedMode, target_peak_m_s2: float, *, enabled=None
         require("max_stroke_m", max_stroke_m, Positive)
     require("frequency_band", frequency_band, Band)
     job = _Job(loaded, target_peak_m_s2, max_mass_ratio, max_stroke_m, frequency_band,
-               settings or OptionSettings(), tmd_sizing)
+               settings or OptionSettings(), tmd_sizing, tuple(stroke_loads))
     rows = [{"option": name} | OPTIONS[name](job) for name in names]
     for row in rows:
         # Every verdict is the one comparison on the number the row reports.
@@ -186,7 +192,8 @@ def _tmd_like(job: _Job, sizing: Sizing, design: TmdDesign | None) -> dict:
 
 def _bank_row(job: _Job) -> dict:
     bank = size_tmd_bank(job.loaded, job.target, max_mass_ratio=job.max_mass_ratio,
-                         max_stroke_m=job.max_stroke_m, settings=job.settings.bank)
+                         max_stroke_m=job.max_stroke_m, settings=job.settings.bank,
+                         stroke_loads=job.stroke_loads)
     if bank.governed_by == "bare":
         return _empty_row(job, bank.message) | {"dampers": [], "pruned_dampers": [],
                                                  "convex_steps": 0}

@@ -12,6 +12,7 @@ from tmd.jobs.shared import (
     header_block,
     load_name,
     loaded_mode_of,
+    stroke_cases_of,
     target_block,
     with_notes,
 )
@@ -60,6 +61,7 @@ def compare_job(case: Case) -> dict:
                 load, case.target_peak_m_s2, enabled=None if opts is None else opts.enabled,
                 max_mass_ratio=case.damper.max_mass_ratio,
                 max_stroke_m=case.damper.max_stroke_m, frequency_band=band,
-                tmd_sizing=size_damper(case), settings=option_settings_of(case))
+                tmd_sizing=size_damper(case), settings=option_settings_of(case),
+                stroke_loads=stroke_cases_of(case))
 
     return with_notes(build, case)

@@ -7,7 +7,14 @@ from __future__ import annotations
 from tmd.case import Case, RobustnessTable
 from tmd.dampers.tuned_mass import TunedMassDamper
 from tmd.design import LoadedMode, Sizing, evaluate_tmd
-from tmd.jobs.shared import header_block, load_name, loaded_mode_of, target_block, with_notes
+from tmd.jobs.shared import (
+    header_block,
+    load_name,
+    loaded_mode_of,
+    stroke_cases_of,
+    target_block,
+    with_notes,
+)
 from tmd.notes import about
 from tmd.robust import (
     design_sweeps,
@@ -48,7 +55,8 @@ def size_for_band(case: Case, load: LoadedMode, band: float, worst):
     meets it only at the nominal frequency (returns the Sizing and the RobustSizing)."""
     robust = robust_least_mass(load, case.target_peak_m_s2, band,
                                max_mass_ratio=case.damper.max_mass_ratio,
-                               max_stroke_m=case.damper.max_stroke_m)
+                               max_stroke_m=case.damper.max_stroke_m,
+                               stroke_loads=stroke_cases_of(case))
     design = robust.design
     reason = (f"the bare building meets the target {case.target_peak_m_s2:.4g} m/s^2 at the "
               f"nominal frequency but not across the band ±{band:g} (worst peak "
@@ -90,6 +98,7 @@ def robustness_block(case: Case, damper: TunedMassDamper, *, robust=None) -> dic
             frequency_band=r.frequency_band, sweep_range=r.sweep_range,
             robust_design=r.robust_design, max_mass_ratio=case.damper.max_mass_ratio,
             max_stroke_m=case.damper.max_stroke_m, probabilistic=uncertainty,
+            stroke_loads=stroke_cases_of(case),
             robust_sizing=robust)
     study["robustness_summary"] = study.pop("summary")
     return study

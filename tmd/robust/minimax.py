@@ -24,6 +24,7 @@ from tmd.dampers.tuned_mass import TunedMassDamper
 from tmd.design import (
     DAMPING_RATIO_BOUNDS,
     FREQUENCY_RATIO_BOUNDS,
+    STROKE_MARGIN,
     DesignError,
     LoadedMode,
     TmdDesign,
@@ -117,7 +118,8 @@ class RobustSizing:
 def tune_for_band(loaded: LoadedMode, mass_ratio: float, frequency_factors, *,
                   max_stroke_m: float | None = None,
                   structure_damping_ratio: StructureDamping | None = None,
-                  start: tuple[float, float] | None = None) -> BandTuning:
+                  start: tuple[float, float] | None = None,
+                  stroke_loads: tuple[LoadedMode, ...] = ()) -> BandTuning:
     """Tuning of a TMD of given mass ratio that minimises the worst peak over a grid of s.
 
     Parameters
@@ -135,6 +137,11 @@ def tune_for_band(loaded: LoadedMode, mass_ratio: float, frequency_factors, *,
     start : (frequency_ratio, damping_ratio), optional
         A warm start (e.g. the band tuning at a nearby mass ratio); it
         replaces the nominal-optimum start.
+    stroke_loads : tuple of LoadedMode
+        Further loads (e.g. a longer return period's wind) under which the
+        peak stroke must also stay within ``max_stroke_m``, at every s of the
+        grid, each with its own band damping
+        (:meth:`tmd.design.LoadedMode.structure_damping_ratio`).
 
     Returns
     -------
@@ -154,7 +161,8 @@ def tune_for_band(loaded: LoadedMode, mass_ratio: float, frequency_factors, *,
     to its iteration limit while the limit was far from active. Starts: the
     nominal optimum (:func:`tmd.design.tune` at s = 1) and a start with 1.5
     times its damping; the better is kept. The stroke limit enters only
-    when the free minimax optimum violates it.
+    when the free minimax optimum violates it; ``peak_stroke_m`` is the
+    worst over the grid and every stroke load.
     """
     factors = np.asarray(frequency_factors, float)
     nominal = tune(loaded, mass_ratio)
@@ -162,13 +170,15 @@ def tune_for_band(loaded: LoadedMode, mass_ratio: float, frequency_factors, *,
     starts = [(nominal.frequency_ratio, zeta0) if start is None else start]
     if factors.size > 1:
         starts.append((nominal.frequency_ratio, min(1.5 * zeta0, DAMPING_RATIO_BOUNDS[1])))
-    free = _solve_band(_BandProblem(loaded, mass_ratio, factors, None, structure_damping_ratio),
-                       starts)
+    extra = tuple(stroke_loads) if max_stroke_m is not None else ()
+    free = _solve_band(_BandProblem(loaded, mass_ratio, factors, None, structure_damping_ratio,
+                                    extra), starts)
     if max_stroke_m is None or free[3] <= max_stroke_m:
         # The limit is not active at the free optimum, so that is the optimum.
         return BandTuning(float(free[2][0]), float(math.exp(free[2][1])), math.exp(free[1]),
                           free[3], False)
-    problem = _BandProblem(loaded, mass_ratio, factors, max_stroke_m, structure_damping_ratio)
+    problem = _BandProblem(loaded, mass_ratio, factors, max_stroke_m, structure_damping_ratio,
+                           extra)
     infeasible, worst, x, stroke = _solve_band(problem, starts + [(free[2][0],
                                                                    math.exp(free[2][1]))])
     infeasible = stroke > max_stroke_m * (1 + 1e-6)
@@ -205,7 +215,8 @@ def robust_least_mass(loaded: LoadedMode, target_peak_m_s2: float, frequency_ban
                       min_mass_ratio: float = 1e-4,
                       structure_damping_ratio: StructureDamping | None = None,
                       optimiser_points: int = OPTIMISER_BAND_POINTS,
-                      check_points: int = CHECK_BAND_POINTS) -> RobustSizing:
+                      check_points: int = CHECK_BAND_POINTS,
+                      stroke_loads: tuple[LoadedMode, ...] = ()) -> RobustSizing:
     """Least-mass TMD whose peak acceleration meets the target for every s in the band.
 
     Parameters
@@ -229,6 +240,10 @@ def robust_least_mass(loaded: LoadedMode, target_peak_m_s2: float, frequency_ban
         Grid of s inside the minimax tuning.
     check_points : int
         Finer grid (plus refinement) on which the answer is checked.
+    stroke_loads : tuple of LoadedMode
+        Further loads under which the stroke limit is held across the
+        optimiser's grid too (:func:`tune_for_band`), e.g. the wind of
+        ``[damper] stroke_return_period_years``.
 
     Returns
     -------
@@ -259,7 +274,7 @@ def robust_least_mass(loaded: LoadedMode, target_peak_m_s2: float, frequency_ban
     for _ in range(EXCHANGE_ROUNDS + 1):
         sizing = _robust_search(loaded, goal, target_peak_m_s2, frequency_band, grid,
                                 max_mass_ratio, lowest, max_stroke_m,
-                                structure_damping_ratio, check_points)
+                                structure_damping_ratio, check_points, tuple(stroke_loads))
         worst = sizing.band_maximum
         if (sizing.governed_by != "target" or worst is None
                 or meets_target(worst.peak_acceleration_m_s2, target_peak_m_s2)):
@@ -274,7 +289,7 @@ def robust_least_mass(loaded: LoadedMode, target_peak_m_s2: float, frequency_ban
 
 
 def _robust_search(loaded, goal, target, band, grid, max_mu, min_mu, max_stroke_m, damping,
-                   check_points) -> RobustSizing:
+                   check_points, stroke_loads=()) -> RobustSizing:
     last = []
     tunings = {}
 
@@ -286,7 +301,7 @@ def _robust_search(loaded, goal, target, band, grid, max_mu, min_mu, max_stroke_
             return tunings[mu]
         tuning = tune_for_band(loaded, mu, grid, max_stroke_m=max_stroke_m,
                                structure_damping_ratio=damping,
-                               start=last[-1] if last else None)
+                               start=last[-1] if last else None, stroke_loads=stroke_loads)
         if np.isfinite(tuning.value):
             last.append((tuning.frequency_ratio, tuning.damping_ratio))
         tunings[mu] = tuning
@@ -326,9 +341,12 @@ def _robust_search(loaded, goal, target, band, grid, max_mu, min_mu, max_stroke_
 class _BandProblem:
     """Worst-case constraints over a grid of s with batched central differences."""
 
-    def __init__(self, loaded, mass_ratio, factors, max_stroke_m, damping):
+    def __init__(self, loaded, mass_ratio, factors, max_stroke_m, damping, stroke_loads=()):
         self.loaded, self.mu, self.s, self.max_stroke = loaded, mass_ratio, factors, max_stroke_m
         self.zeta_s = structure_damping_ratios(loaded, factors, damping)
+        # Further loads the stroke limit applies to, each with its own band damping.
+        self.stroke_loads = tuple((other, structure_damping_ratios(other, factors))
+                                  for other in stroke_loads)
         self._x = None
 
     def evaluate(self, x):
@@ -346,7 +364,13 @@ class _BandProblem:
                    shape_factor=self.loaded.shape_factor, responses=("acceleration", "stroke"),
                    peak_method=self.loaded.peak_method)
         log_peak = np.log(a.peak_acceleration_m_s2)
-        log_stroke = np.log(a.peak_stroke_m[..., 0])
+        # Stroke rows: the design load's grid of s, then each further load's.
+        log_stroke = np.log(np.concatenate([a.peak_stroke_m[..., 0]] + [
+            assess(self.s * other.mode.frequency_hz, other.mode.modal_mass_kg, zeta_s,
+                   absorbers, other.spectrum, other.duration_s,
+                   shape_factor=other.shape_factor, responses=("stroke",),
+                   peak_method=other.peak_method).peak_stroke_m[..., 0]
+            for other, zeta_s in self.stroke_loads], axis=-1))
         # A copy: SLSQP may hand over its own buffer and change it in place.
         self._x = x.copy()
         self.log_peak, self.stroke = log_peak[0], np.exp(log_stroke[0])
@@ -358,7 +382,8 @@ class _BandProblem:
         self.evaluate(z[:2])
         rows = [z[2] - self.log_peak]
         if self.max_stroke is not None:
-            rows.append([math.log(self.max_stroke) - self.log_stroke.max()])
+            rows.append([math.log(self.max_stroke * (1.0 - STROKE_MARGIN))
+                         - self.log_stroke.max()])
         return np.concatenate(rows)
 
     def constraint_jac(self, z):

@@ -28,7 +28,8 @@ def robustness_study(loaded: LoadedMode, nominal: TunedMassDamper, target_peak_m
                      robust_design: bool = True, max_mass_ratio: float = MAX_MASS_RATIO,
                      max_stroke_m: float | None = None,
                      structure_damping_ratio: StructureDamping | None = None,
-                     probabilistic=None, robust_sizing: RobustSizing | None = None) -> dict:
+                     probabilistic=None, robust_sizing: RobustSizing | None = None,
+                     stroke_loads: tuple[LoadedMode, ...] = ()) -> dict:
     """Sweeps, band maximum, robust design and (optionally) exceedance probabilities.
 
     Parameters
@@ -61,6 +62,9 @@ def robustness_study(loaded: LoadedMode, nominal: TunedMassDamper, target_peak_m
         A robust design sized already (e.g. the design itself, when it was
         sized for the band): reported as ``band_design`` instead of a new
         search.
+    stroke_loads : tuple of LoadedMode
+        Further loads under which the robust design holds the stroke limit
+        too (:func:`tmd.robust.minimax.robust_least_mass`).
 
     Returns
     -------
@@ -94,7 +98,8 @@ def robustness_study(loaded: LoadedMode, nominal: TunedMassDamper, target_peak_m
     elif robust_design:
         robust = robust_least_mass(loaded, target_peak_m_s2, frequency_band,
                                    max_mass_ratio=max_mass_ratio, max_stroke_m=max_stroke_m,
-                                   structure_damping_ratio=structure_damping_ratio)
+                                   structure_damping_ratio=structure_damping_ratio,
+                                   stroke_loads=stroke_loads)
         result["band_design"] = robust_design_block(robust)
     if probabilistic is not None:
         result["probabilistic"] = probabilistic_study(

@@ -158,7 +158,8 @@ class BankDesign:
 class _Problem:
     """The structure, load, scenarios and limits, with the engine check."""
 
-    def __init__(self, loaded, target, max_stroke_m, factors, frequency_hz, damping_ratio):
+    def __init__(self, loaded, target, max_stroke_m, factors, frequency_hz, damping_ratio,
+                 stroke_loads=()):
         self.loaded, self.target, self.max_stroke = loaded, target, max_stroke_m
         self.s = np.asarray(factors, float)
         self.f = np.asarray(frequency_hz, float)
@@ -168,6 +169,11 @@ class _Problem:
         # The band definition of every job (aerodynamic damping as 1/s).
         self.zeta_s = loaded.structure_damping_ratio(self.s)
         self.k0 = m.stiffness_n_per_m
+        # Further loads the stroke limit applies to, in every scenario, each with its
+        # own band damping (none without a limit).
+        self.stroke_loads = tuple(
+            (other, np.broadcast_to(other.structure_damping_ratio(self.s), self.s.shape))
+            for other in (stroke_loads if max_stroke_m is not None else ()))
 
     def absorbers(self, mu, keep):
         m = self.loaded.mode
@@ -176,20 +182,29 @@ class _Problem:
                                       np.broadcast_to(self.f[keep], shape),
                                       np.broadcast_to(self.zeta[keep], shape))
 
-    def assess(self, mu, keep) -> Assessment:
-        m, c = self.loaded.mode, self.loaded
-        return assess(self.fs, m.modal_mass_kg, self.zeta_s, self.absorbers(mu, keep),
+    def assess(self, mu, keep, load=None, zeta_s=None, responses=None) -> Assessment:
+        """The engine on every scenario, under the design load or a given one."""
+        c = self.loaded if load is None else load
+        zeta_s = self.zeta_s if zeta_s is None else zeta_s
+        return assess(self.fs, c.mode.modal_mass_kg, zeta_s, self.absorbers(mu, keep),
                       c.spectrum, c.duration_s, shape_factor=c.shape_factor,
-                      peak_method=c.peak_method)
+                      peak_method=c.peak_method, **({} if responses is None
+                                                    else {"responses": responses}))
+
+    def peak_strokes(self, mu, keep, a) -> np.ndarray:
+        """Peak strokes [m], scenarios of the design load (``a``) then of each stroke load."""
+        return np.concatenate([a.peak_stroke_m] + [
+            self.assess(mu, keep, other, zeta_s, responses=("stroke",)).peak_stroke_m
+            for other, zeta_s in self.stroke_loads], axis=0)
 
     def ratios(self, mu, keep):
-        """Worst peak / target and worst stroke / limit over the scenarios."""
+        """Worst peak / target and worst stroke / limit over the scenarios (and stroke loads)."""
         a = self.assess(mu, keep)
         acc = float(np.max(a.peak_acceleration_m_s2)) / self.target
         used = mu[keep] > 0
         stroke = 0.0
         if self.max_stroke is not None and np.any(used):
-            stroke = float(np.max(a.peak_stroke_m[:, used])) / self.max_stroke
+            stroke = float(np.max(self.peak_strokes(mu, keep, a)[:, used])) / self.max_stroke
         return acc, stroke, a
 
     def feasible(self, mu, keep):
@@ -203,7 +218,8 @@ class _Problem:
 def size_tmd_bank(loaded: LoadedMode, target_peak_m_s2: float, *, max_mass_ratio: float,
                   max_stroke_m: float | None = None,
                   settings: BankSettings = BankSettings(),
-                  frequency_ratios=None, damping_ratios=None) -> BankDesign:
+                  frequency_ratios=None, damping_ratios=None,
+                  stroke_loads: tuple[LoadedMode, ...] = ()) -> BankDesign:
     """Least total mass of a TMD bank chosen from a dictionary of tunings.
 
     Parameters
@@ -220,6 +236,10 @@ def size_tmd_bank(loaded: LoadedMode, target_peak_m_s2: float, *, max_mass_ratio
         Dictionary grid, scenarios and iteration limits.
     frequency_ratios, damping_ratios : array, optional
         An explicit list of candidates (equal lengths) instead of the grid.
+    stroke_loads : tuple of LoadedMode
+        Further loads (e.g. a longer return period's wind) under which every
+        damper's peak stroke must also stay within ``max_stroke_m``, in every
+        scenario.
 
     Returns
     -------
@@ -243,7 +263,7 @@ def size_tmd_bank(loaded: LoadedMode, target_peak_m_s2: float, *, max_mass_ratio
         ratios, zetas = (np.atleast_1d(np.asarray(v, float)) for v in
                          (frequency_ratios, damping_ratios))
     problem = _Problem(loaded, target_peak_m_s2, max_stroke_m, settings.frequency_factors,
-                       ratios * loaded.mode.frequency_hz, zetas)
+                       ratios * loaded.mode.frequency_hz, zetas, stroke_loads)
     n = ratios.size
     keep = np.ones(n, bool)
     bare_acc = float(np.max(problem.assess(np.zeros(n), keep).peak_acceleration_m_s2))
@@ -345,7 +365,7 @@ def _feasible_start(problem: _Problem, n, max_mass_ratio):
             if (meets_target(float(np.max(a.peak_acceleration_m_s2)), problem.target)
                     and stroke <= 1 + CHECK_TOLERANCE):
                 return mu, keep
-            worst = np.max(a.peak_stroke_m, axis=0) > problem.max_stroke
+            worst = np.max(problem.peak_strokes(mu, keep, a), axis=0) > problem.max_stroke
             if not np.any(worst):
                 break
             keep = keep.copy()
@@ -362,42 +382,27 @@ def _convex_step(problem: _Problem, mu, keep):
     """
     import cvxpy as cp  # here, not at module level: importing it takes ~1 s
 
-    m = problem.loaded.mode
-    c = problem.loaded
     idx = np.flatnonzero(keep)
-    a = problem.assess(mu, keep)
-    absorbers = problem.absorbers(mu, keep)
-    poles = closed_loop_poles(problem.fs, m.modal_mass_kg, problem.zeta_s, absorbers)
-    grid, weight = pole_grid(*resonances(poles), c.spectrum.f_min_hz, c.spectrum.f_max_hz)
-    omega = TWO_PI * grid
-    w2 = omega**2
-    fs = problem.fs[:, None]
-    # Nondimensional z = Z / k0 = base + coeff @ mu, per scenario and node.
-    ks = (fs / m.frequency_hz) ** 2
-    base = ks - w2 / (TWO_PI * m.frequency_hz) ** 2 + 2j * problem.zeta_s[:, None] * np.sqrt(
-        ks) * (omega / (TWO_PI * m.frequency_hz))
-    wa = TWO_PI * problem.f[idx]
-    d = wa**2 - w2[..., None] + 2j * problem.zeta[idx] * wa * omega[..., None]
-    transfer = 1.0 + w2[..., None] / d
-    coeff = -(w2[..., None] / (TWO_PI * m.frequency_hz) ** 2) * transfer
-    z0 = base + coeff @ mu[idx]
-    unit = np.conj(z0) / np.abs(z0)
-    p = np.real(unit * base)
-    q = np.real(unit[..., None] * coeff)
-    load = weight * c.spectrum(grid) / problem.k0**2
-    sigma_a = problem.target / (np.asarray(a.peak_factor) * c.shape_factor) * (1 - STEP_MARGIN)
     x = cp.Variable(idx.size, nonneg=True)
     constraints = []
-    for k in range(problem.s.size):
-        inverse_sq = cp.power(p[k] + q[k] @ x, -2)
-        acc_weight = load[k] * omega[k] ** 4 / sigma_a[k] ** 2
-        constraints.append(acc_weight @ inverse_sq <= 1.0)
-        if problem.max_stroke is not None:
-            g_r = a.peak_stroke_m[k] / a.sigma_stroke_m[k]
-            limit = problem.max_stroke / g_r * (1 - STEP_MARGIN)
-            stroke_weight = (np.abs(w2[k][:, None] / d[k]) ** 2 * load[k][:, None]
-                             / limit**2).T
-            constraints.append(stroke_weight @ inverse_sq <= 1.0)
+    loads = ((problem.loaded, problem.zeta_s, True),) + tuple(
+        (other, zeta_s, False) for other, zeta_s in problem.stroke_loads)
+    for load, zeta_s, design in loads:
+        # The acceleration target under the design load; the stroke limit under every load.
+        a, omega, w2, d, p, q, weight = _linearised(problem, load, zeta_s, mu, keep, idx)
+        sigma_a = problem.target / (np.asarray(a.peak_factor) * load.shape_factor) * (
+            1 - STEP_MARGIN)
+        for k in range(problem.s.size):
+            inverse_sq = cp.power(p[k] + q[k] @ x, -2)
+            if design:
+                acc_weight = weight[k] * omega[k] ** 4 / sigma_a[k] ** 2
+                constraints.append(acc_weight @ inverse_sq <= 1.0)
+            if problem.max_stroke is not None:
+                g_r = a.peak_stroke_m[k] / a.sigma_stroke_m[k]
+                limit = problem.max_stroke / g_r * (1 - STEP_MARGIN)
+                stroke_weight = (np.abs(w2[k][:, None] / d[k]) ** 2 * weight[k][:, None]
+                                 / limit**2).T
+                constraints.append(stroke_weight @ inverse_sq <= 1.0)
     prob = cp.Problem(cp.Minimize(cp.sum(x)), constraints)
     try:
         prob.solve(solver=cp.CLARABEL)
@@ -410,6 +415,37 @@ def _convex_step(problem: _Problem, mu, keep):
     proposal = np.zeros_like(mu)
     proposal[idx] = np.maximum(x.value, 0.0)
     return proposal, prob.status, prob.status == cp.OPTIMAL
+
+
+def _linearised(problem: _Problem, load: LoadedMode, zeta_s, mu, keep, idx):
+    """The engine's responses and the step's linearised impedance under one load.
+
+    Returns the assessment at mu and, per scenario and grid node, omega,
+    omega^2, the dampers' denominators d, and p, q of the linearised
+    |z| = p + q @ x (z = Z / k0 of the structure with the dampers), with the
+    node weights times the load's spectrum / k0^2.
+    """
+    m = load.mode
+    a = problem.assess(mu, keep, load, zeta_s)
+    absorbers = problem.absorbers(mu, keep)
+    poles = closed_loop_poles(problem.fs, m.modal_mass_kg, zeta_s, absorbers)
+    grid, weight = pole_grid(*resonances(poles), load.spectrum.f_min_hz, load.spectrum.f_max_hz)
+    omega = TWO_PI * grid
+    w2 = omega**2
+    fs = problem.fs[:, None]
+    # Nondimensional z = Z / k0 = base + coeff @ mu, per scenario and node.
+    ks = (fs / m.frequency_hz) ** 2
+    base = ks - w2 / (TWO_PI * m.frequency_hz) ** 2 + 2j * np.asarray(zeta_s)[:, None] * np.sqrt(
+        ks) * (omega / (TWO_PI * m.frequency_hz))
+    wa = TWO_PI * problem.f[idx]
+    d = wa**2 - w2[..., None] + 2j * problem.zeta[idx] * wa * omega[..., None]
+    transfer = 1.0 + w2[..., None] / d
+    coeff = -(w2[..., None] / (TWO_PI * m.frequency_hz) ** 2) * transfer
+    z0 = base + coeff @ mu[idx]
+    unit = np.conj(z0) / np.abs(z0)
+    p = np.real(unit * base)
+    q = np.real(unit[..., None] * coeff)
+    return a, omega, w2, d, p, q, weight * load.spectrum(grid) / problem.k0**2
 
 
 def _iterate(problem, mu, keep, step, status) -> BankIterate:
