@@ -1,5 +1,7 @@
-"""The design and evaluate jobs: the TMD sized by the case's peak method, its peak by
-each estimate, and the recommendation.
+"""The design and evaluate jobs.
+
+The TMD sized by the case's peak method, its peak by each estimate, and the
+recommendation.
 """
 
 from __future__ import annotations
@@ -41,7 +43,7 @@ CHECK_RECORDS = 40
 
 
 def size_damper(case: Case, target_m_s2: float | None = None) -> Sizing:
-    """The TMD the case asks for: tuned at a fixed mass ratio, or the least mass.
+    """Return the TMD the case asks for: tuned at a fixed mass ratio, or the least mass.
 
     Parameters
     ----------
@@ -75,7 +77,7 @@ def size_damper(case: Case, target_m_s2: float | None = None) -> Sizing:
 
 
 def sized_for_peak_method(case: Case) -> tuple[Sizing, dict | None]:
-    """The sizing by the case's peak method, with the simulated loop's record if it ran.
+    """Return the sizing by the case's peak method, with the simulated loop's record if it ran.
 
     Parameters
     ----------
@@ -141,7 +143,7 @@ def peak_estimates(load: LoadedMode, design: TmdDesign | None, *,
 
 
 def simulation_settings(case: Case, *, check_records: int = CHECK_RECORDS):
-    """The case's Monte Carlo settings (``[simulation]``), or a light check's.
+    """Return the case's Monte Carlo settings (``[simulation]``), or a light check's.
 
     Parameters
     ----------
@@ -162,7 +164,20 @@ def simulation_settings(case: Case, *, check_records: int = CHECK_RECORDS):
 
 
 def design_job(case: Case) -> dict:
-    """Bare response, sized TMD and the numbers of its specification."""
+    """Run the design job: bare response, sized TMD and the numbers of its specification.
+
+    Parameters
+    ----------
+    case : Case
+        The validated case file (:func:`tmd.case.load_case`).
+
+    Returns
+    -------
+    dict
+        results.json of ``tmd design``: header, target, bare, design, sizing,
+        peak estimates, per-return-period rows, end-stops, robustness blocks,
+        the recommendation, warnings and cautions (keys with their SI unit).
+    """
 
     def build():
         load = loaded_mode_of(case)
@@ -204,7 +219,7 @@ def design_job(case: Case) -> dict:
 
 
 def _recommended(case: Case, load: LoadedMode, result: dict) -> dict:
-    """The ``recommended`` block (:mod:`tmd.recommend`) on the band check, which always runs."""
+    """Return the ``recommended`` block (:mod:`tmd.recommend`) on the band check (always run)."""
     band = result.get("frequency_band", robustness_settings(case).frequency_band)
     bare_band = (result["bare"].get("peak_acceleration_band_max_m_s2")
                  if result["design"] is None else None)
@@ -234,7 +249,7 @@ def _recommended(case: Case, load: LoadedMode, result: dict) -> dict:
 
 
 def _nominal_design(load: LoadedMode, result: dict) -> TmdDesign:
-    """The nominal design of a results dict, evaluated again on its load."""
+    """Return the nominal design of a results dict, evaluated again on its load."""
     d = result["design"]
     return evaluate_tmd(load, TunedMassDamper(d["mass_ratio"], d["frequency_ratio"],
                                               d["damping_ratio"]),
@@ -242,7 +257,22 @@ def _nominal_design(load: LoadedMode, result: dict) -> TmdDesign:
 
 
 def evaluate_job(case: Case, damper: TunedMassDamper) -> dict:
-    """Responses of one given TMD design on the case."""
+    """Run the evaluate job: the responses of one given TMD design on the case.
+
+    Parameters
+    ----------
+    case : Case
+        The validated case file (:func:`tmd.case.load_case`).
+    damper : TunedMassDamper
+        The TMD by mass ratio, frequency ratio and damping ratio (e.g. a
+        proposed or as-built damper).
+
+    Returns
+    -------
+    dict
+        results.json of ``tmd evaluate``: header, target, bare, design,
+        per-return-period rows, end-stops, warnings and cautions.
+    """
 
     def build():
         load = loaded_mode_of(case)

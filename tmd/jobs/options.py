@@ -1,5 +1,4 @@
-"""The compare job: every enabled passive option sized on the case.
-"""
+"""The compare job: every enabled passive option sized on the case."""
 
 from __future__ import annotations
 
@@ -20,11 +19,12 @@ from tmd.notes import about
 
 
 def option_settings_of(case: Case):
-    """The options' settings from the case's [options.*] tables (their defaults otherwise).
+    """Return the options' settings from the case's [options.*] tables (their defaults otherwise).
 
     Parameters
     ----------
     case : Case
+        The validated case file (:func:`tmd.case.load_case`).
 
     Returns
     -------
@@ -40,7 +40,20 @@ def option_settings_of(case: Case):
 
 
 def compare_job(case: Case) -> dict:
-    """Every enabled passive option sized on the case, side by side."""
+    """Run the compare job: every enabled passive option sized on the case, side by side.
+
+    Parameters
+    ----------
+    case : Case
+        The validated case file (:func:`tmd.case.load_case`).
+
+    Returns
+    -------
+    dict
+        results.json of ``tmd compare``: header, target, bare, the frequency
+        band of the robustness check [-] and one ``options`` row per option
+        (mass [kg], peak acceleration [m/s^2], stroke [m], force [N], verdict).
+    """
     opts = case.tables.options
     band = None if opts is None else opts.frequency_band
     if band is None:

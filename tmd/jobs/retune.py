@@ -1,5 +1,4 @@
-"""The retune job: a built damper re-tuned to the measured structure.
-"""
+"""The retune job: a built damper re-tuned to the measured structure."""
 
 from __future__ import annotations
 
@@ -17,6 +16,7 @@ def retune_job(case: Case, installed, frequency_hz: float, *, damping_ratio: flo
     Parameters
     ----------
     case : Case
+        The validated case file (:func:`tmd.case.load_case`).
     installed : tmd.retune.BuiltDamper
         The damper as built (from a results.json design block).
     frequency_hz : float

@@ -1,5 +1,7 @@
-"""Robustness in the jobs: the [robustness] settings, the detuning sweeps, the band
-check, the band-robust and probabilistic designs, and the sweep job.
+"""Robustness in the jobs: settings, detuning sweeps, band check, robust designs.
+
+The [robustness] settings, the detuning sweeps, the band check, the
+band-robust and probabilistic designs, and the sweep job.
 """
 
 from __future__ import annotations
@@ -28,12 +30,23 @@ from tmd.schema import design_block
 
 
 def robustness_settings(case: Case) -> RobustnessTable:
-    """The case's [robustness] table; without one, its defaults with the sweeps only.
+    """Return the case's [robustness] table; without one, its defaults with the sweeps only.
 
     The detuning sweeps and the band maximum run for every design (an
     engineer always needs the sensitivity to detuning); the robust re-design
     and the probabilistic study, the heavier parts, only when the case's
     [robustness] table asks for them.
+
+    Parameters
+    ----------
+    case : Case
+        The validated case file (:func:`tmd.case.load_case`).
+
+    Returns
+    -------
+    RobustnessTable
+        Frequency band and sweep range [-], whether to size a robust design,
+        and the probabilistic study's settings.
     """
     if case.tables.robustness is not None:
         return case.tables.robustness
@@ -41,18 +54,69 @@ def robustness_settings(case: Case) -> RobustnessTable:
 
 
 def bare_band_maximum(load: LoadedMode, band: float):
+    """Return the bare building's worst peak acceleration over the detuning band.
+
+    Parameters
+    ----------
+    load : LoadedMode
+        The mode under its design load.
+    band : float
+        Half-width b of the band of structure frequency factors s in
+        [1 - b, 1 + b] [-].
+
+    Returns
+    -------
+    tmd.robust.BandMaximum
+        The worst peak acceleration [m/s^2] and the factor s where it occurs.
+    """
     return peak_acceleration_band_max(load, None, band)
 
 
 def bare_sweeps(load: LoadedMode, settings: RobustnessTable) -> dict:
+    """Return the bare building's structure-frequency sweep, for a case needing no damper.
+
+    Parameters
+    ----------
+    load : LoadedMode
+        The mode under its design load.
+    settings : RobustnessTable
+        The band and the sweep range [-].
+
+    Returns
+    -------
+    dict
+        ``frequency_band`` [-] and ``sweep_bare``, one row per factor s.
+    """
     return {"frequency_band": settings.frequency_band,
             "sweep_bare": sweep_structure_frequency(load, None,
                                                     sweep_range=settings.sweep_range)}
 
 
 def size_for_band(case: Case, load: LoadedMode, band: float, worst):
-    """The least-mass TMD meeting the target across the band, when the bare building
-    meets it only at the nominal frequency (returns the Sizing and the RobustSizing)."""
+    """Return the least-mass TMD meeting the target across the band.
+
+    Used when the bare building meets the target at the nominal frequency
+    but not across the band.
+
+    Parameters
+    ----------
+    case : Case
+        The validated case file (:func:`tmd.case.load_case`).
+    load : LoadedMode
+        The mode under its design load.
+    band : float
+        Half-width b of the band s in [1 - b, 1 + b] [-].
+    worst : tmd.robust.BandMaximum
+        The bare building's worst peak over the band, quoted in the message.
+
+    Returns
+    -------
+    sizing : Sizing
+        The design (governed by "band"), or none ("bare") when the robust
+        search needs no damper.
+    robust : tmd.robust.RobustSizing
+        The robust search's own outcome.
+    """
     robust = robust_least_mass(load, case.target_peak_m_s2, band,
                                max_mass_ratio=case.damper.max_mass_ratio,
                                max_stroke_m=case.damper.max_stroke_m,
@@ -68,7 +132,7 @@ def size_for_band(case: Case, load: LoadedMode, band: float, worst):
 
 
 def robustness_block(case: Case, damper: TunedMassDamper, *, robust=None) -> dict:
-    """Detuning sweeps, band maximum, robust and probabilistic designs of the case.
+    """Return the detuning sweeps, band maximum, robust and probabilistic designs of the case.
 
     Parameters
     ----------
@@ -105,7 +169,21 @@ def robustness_block(case: Case, damper: TunedMassDamper, *, robust=None) -> dic
 
 
 def sweep_job(case: Case, damper: TunedMassDamper) -> dict:
-    """Detuning sweeps of any given design (e.g. an as-built damper)."""
+    """Run the detuning sweeps of any given design (e.g. an as-built damper).
+
+    Parameters
+    ----------
+    case : Case
+        The validated case file (:func:`tmd.case.load_case`).
+    damper : TunedMassDamper
+        The TMD by mass ratio, frequency ratio and damping ratio.
+
+    Returns
+    -------
+    dict
+        results.json of ``tmd sweep``: header, target, the design and its
+        sweeps over structure frequency, damper frequency and damper damping.
+    """
     r = robustness_settings(case)
 
     def build():

@@ -1,5 +1,7 @@
-"""The case's loaded modes and the results blocks every job shares (header, target,
-bare response, per-return-period rows, end-stop checks, warnings and cautions).
+"""The case's loaded modes and the results blocks every job shares.
+
+The blocks: header, target, bare response, per-return-period rows, end-stop
+checks, warnings and cautions.
 """
 
 from __future__ import annotations
@@ -20,10 +22,25 @@ from tmd.wind_loads import WindLoad
 
 
 def loaded_mode_of(case: Case, wind_load: WindLoad | None = None) -> LoadedMode:
-    """The case's mode under its design load (or one return period's wind load).
+    """Return the case's mode under its design load (or one return period's wind load).
 
     The mode's damping includes the aerodynamic damping of that load when
     the case asks for it; accelerations are at the evaluation height.
+
+    Parameters
+    ----------
+    case : Case
+        The validated case file (:func:`tmd.case.load_case`).
+    wind_load : WindLoad, optional
+        One return period's wind load (:mod:`tmd.wind_loads`); by default the
+        case's design load.
+
+    Returns
+    -------
+    LoadedMode
+        The mode (damping structural plus aerodynamic), its one-sided modal
+        force PSD [N^2/Hz], the peak duration [s], the mode-shape value at the
+        evaluation height [-] and the spectral peak method.
     """
     load = wind_load if wind_load is not None else case.design_wind_load
     method = spectral_peak_method(case)
@@ -36,22 +53,58 @@ def loaded_mode_of(case: Case, wind_load: WindLoad | None = None) -> LoadedMode:
 
 
 def peak_method(case: Case) -> str:
-    """The case's ``[target] peak_method``: davenport, vanmarcke or simulated."""
+    """Return the case's ``[target] peak_method``: davenport, vanmarcke or simulated.
+
+    Parameters
+    ----------
+    case : Case
+        The validated case file (:func:`tmd.case.load_case`).
+
+    Returns
+    -------
+    str
+        The method as written in the case ("davenport" when not given).
+    """
     return case.tables.target.peak_method if case.tables is not None else "davenport"
 
 
 def spectral_peak_method(case: Case) -> str:
-    """The spectral peak estimate of the engine's load cases.
+    """Return the spectral peak estimate of the engine's load cases.
 
     ``"simulated"`` sizes with Davenport's peak, corrected by simulation in
     an outer loop (:mod:`tmd.simulated_sizing`).
+
+    Parameters
+    ----------
+    case : Case
+        The validated case file (:func:`tmd.case.load_case`).
+
+    Returns
+    -------
+    str
+        "davenport" or "vanmarcke".
     """
     method = peak_method(case)
     return "davenport" if method == "simulated" else method
 
 
 def load_name(case: Case, wind_load: WindLoad | None = None) -> str:
-    """The load in words, for warnings: "1-year wind (design load)" or the force spectrum file."""
+    """Return the load in words, for warnings.
+
+    Parameters
+    ----------
+    case : Case
+        The validated case file (:func:`tmd.case.load_case`).
+    wind_load : WindLoad, optional
+        One return period's wind load (:mod:`tmd.wind_loads`); by default the
+        case's design load.
+
+    Returns
+    -------
+    str
+        E.g. "1-year wind (design load)", or "design load (file.csv)" for a
+        force-spectrum case.
+    """
     if case.wind_loads:
         period = (wind_load.return_period_years if wind_load is not None
                   else case.target_return_period_years)
@@ -66,6 +119,21 @@ def with_notes(build: Callable[[], dict], case: Case | None = None) -> dict:
 
     Warnings about the case's inputs come first; the computation's own are
     merged by :func:`tmd.notes.collect`, each naming its load.
+
+    Parameters
+    ----------
+    build : callable
+        The job's computation, taking no argument and returning its results
+        dictionary.
+    case : Case, optional
+        The validated case, whose input warnings come first and whose design
+        load names the computation's warnings.
+
+    Returns
+    -------
+    dict
+        ``build()``'s results with ``warnings`` (list of str) and ``cautions``
+        added.
     """
     first = (*case.notes, *case.across_notes) if case is not None else ()
     with about(load_name(case) if case is not None else DEFAULT_LOAD):
@@ -76,6 +144,18 @@ def with_notes(build: Callable[[], dict], case: Case | None = None) -> dict:
 
 
 def header_block(case: Case) -> dict:
+    """Return the header of results.json: tool and schema versions and the case.
+
+    Parameters
+    ----------
+    case : Case
+        The validated case file (:func:`tmd.case.load_case`).
+
+    Returns
+    -------
+    dict
+        ``tool_version``, ``schema_version`` and ``case`` (name, path, inputs).
+    """
     return {
         "tool_version": __version__,
         "schema_version": SCHEMA_VERSION,
@@ -84,10 +164,38 @@ def header_block(case: Case) -> dict:
 
 
 def bare_block(load: LoadedMode) -> dict:
+    """Return the ``bare`` block of results.json: the building without a damper.
+
+    Parameters
+    ----------
+    load : LoadedMode
+        The mode under its design load.
+
+    Returns
+    -------
+    dict
+        The fields of :class:`tmd.design.BareResponse` (rms and peak
+        acceleration [m/s^2], peak factor [-], up-crossing rate [Hz], rms
+        displacement [m]).
+    """
     return asdict(bare_response(load))
 
 
 def target_block(case: Case) -> dict:
+    """Return the ``target`` block of results.json.
+
+    Parameters
+    ----------
+    case : Case
+        The validated case file (:func:`tmd.case.load_case`).
+
+    Returns
+    -------
+    dict
+        ``peak_acceleration_m_s2`` [m/s^2], ``duration_s`` [s],
+        ``peak_method``, and ``peak_fractile`` [-] and
+        ``return_period_years`` [years] where the case gives them.
+    """
     block = {"peak_acceleration_m_s2": case.target_peak_m_s2, "duration_s": case.duration_s,
              "peak_method": peak_method(case)}
     if case.tables is not None and case.tables.target.peak_fractile is not None:
@@ -98,7 +206,18 @@ def target_block(case: Case) -> dict:
 
 
 def across_block(case: Case) -> dict:
-    """``direction_of_response`` and the ``across_wind`` block of a wind case."""
+    """Return ``direction_of_response`` and the ``across_wind`` block of a wind case.
+
+    Parameters
+    ----------
+    case : Case
+        The validated case file (:func:`tmd.case.load_case`).
+
+    Returns
+    -------
+    dict
+        Both keys, or empty when the case has no across-wind model.
+    """
     if case.across_wind is None:
         return {}
     return {"direction_of_response": case.direction_of_response,
@@ -106,7 +225,22 @@ def across_block(case: Case) -> dict:
 
 
 def vortex_keys(case: Case, period: float) -> dict:
-    """Top speed, reduced velocity, v_crit, lock-in flag and C'_L of one return period."""
+    """Return the vortex-shedding keys of one return period.
+
+    Parameters
+    ----------
+    case : Case
+        The validated case file (:func:`tmd.case.load_case`).
+    period : float
+        Return period of the wind [years], one of the case's.
+
+    Returns
+    -------
+    dict
+        ``top_mean_speed_m_s`` [m/s], ``reduced_velocity`` [-],
+        ``critical_speed_m_s`` [m/s], ``lock_in_possible`` and
+        ``rms_lift_coefficient`` [-]; empty without an across-wind model.
+    """
     block = case.across_wind
     if not block:
         return {}
@@ -119,7 +253,22 @@ def vortex_keys(case: Case, period: float) -> dict:
 
 
 def by_return_period(case: Case, design: TmdDesign | None) -> list[dict]:
-    """Bare and damped responses for every return period of a wind case."""
+    """Return the bare and damped responses for every return period of a wind case.
+
+    Parameters
+    ----------
+    case : Case
+        The validated case file (:func:`tmd.case.load_case`).
+    design : TmdDesign or None
+        The design whose damper (fixed mass, frequency and damping) is
+        evaluated at each return period; None for the bare building only.
+
+    Returns
+    -------
+    list of dict
+        One ``by_return_period`` row per wind load: mean speed [m/s],
+        aerodynamic damping ratio [-], ``bare`` and ``design`` responses.
+    """
     rows = []
     for wind_load in case.wind_loads:
         with about(load_name(case, wind_load)):
@@ -149,11 +298,12 @@ def _return_period_row(case: Case, design: TmdDesign | None, wind_load: WindLoad
 
 
 def stroke_cases_of(case: Case) -> tuple[LoadedMode, ...]:
-    """Loads besides the design one under which the stroke limit constrains the tuning.
+    """Return the loads besides the design one under which the stroke limit constrains the tuning.
 
     Parameters
     ----------
     case : Case
+        The validated case file (:func:`tmd.case.load_case`).
 
     Returns
     -------
@@ -170,12 +320,14 @@ def stroke_cases_of(case: Case) -> tuple[LoadedMode, ...]:
 
 def extreme_checks(case: Case, design: TmdDesign, rows: list[dict] | None,
                    subject: str = "the design") -> dict:
-    """The ``end_stops`` block, and a warning per return period whose stroke exceeds the limit.
+    """Return the ``end_stops`` block; warn per return period whose stroke exceeds the limit.
 
     Parameters
     ----------
     case : Case
+        The validated case file (:func:`tmd.case.load_case`).
     design : TmdDesign
+        The design whose damper is checked at every load.
     rows : list of dict or None
         The ``by_return_period`` rows (None for a force-spectrum case).
     subject : str

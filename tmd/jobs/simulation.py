@@ -1,5 +1,4 @@
-"""The simulate job: a Monte Carlo check of a design in the time domain.
-"""
+"""The simulate job: a Monte Carlo check of a design in the time domain."""
 
 from __future__ import annotations
 
@@ -104,7 +103,7 @@ def _simulated_device(load: LoadedMode, device: dict, end_stop_travel_m):
 
 
 def _simulated_design(sim, limit, case: Case, freeboard_m):
-    """The damped statistics block of one load."""
+    """Return the damped statistics block of one load."""
     stroke_limit = case.damper.max_stroke_m
     block = {"acceleration": sim.acceleration.summary("m_s2", limit),
              "stroke": sim.stroke.summary("m", freeboard_m if freeboard_m is not None

@@ -1,5 +1,6 @@
-"""The wind job: wind at the reference height, the EN 1991-1-4 Annex B check and the
-spectral route per return period.
+"""The wind job: wind at the reference height, EN 1991-1-4 Annex B and the spectral route.
+
+Both per return period.
 """
 
 from __future__ import annotations
@@ -17,10 +18,24 @@ from tmd.wind_setup import across_wind_spectrum
 
 
 def across_check(case: Case, wind_load: WindLoad) -> dict:
-    """Bare peak acceleration under the across-wind model, for an along-wind case.
+    """Return the bare peak acceleration under the across-wind model, for an along-wind case.
 
     The across-wind sway mode is taken with the case's [mode] properties and
     its structural damping only (no aerodynamic damping across the wind).
+
+    Parameters
+    ----------
+    case : Case
+        The validated case file (:func:`tmd.case.load_case`).
+    wind_load : WindLoad
+        One return period's wind load (its top mean speed sets the
+        across-wind spectrum).
+
+    Returns
+    -------
+    dict
+        ``across_spectral_peak_acceleration_m_s2`` [m/s^2]; empty for an
+        across-wind case or without a top speed.
     """
     if case.direction_of_response != "along" or wind_load.top_mean_speed_m_s is None:
         return {}
@@ -31,9 +46,33 @@ def across_check(case: Case, wind_load: WindLoad) -> dict:
 
 
 def wind_job(case: Case) -> dict:
-    """Wind at the reference height and the EN 1991-1-4 Annex B check per return period,
-    beside the spectral route's bare-building acceleration at the evaluation height,
-    and the vortex-shedding check of the across-wind model."""
+    """Run the wind job: the wind and the bare building's acceleration per return period.
+
+    Wind at the reference height and the EN 1991-1-4 Annex B check per return
+    period, beside the spectral route's bare-building acceleration at the
+    evaluation height, and the vortex-shedding check of the across-wind model.
+
+    Parameters
+    ----------
+    case : Case
+        The validated case file (:func:`tmd.case.load_case`).
+
+    Returns
+    -------
+    dict
+        results.json of ``tmd wind``: one ``return_periods`` row each (Annex B
+        quantities, S_u at the mode [m^2/s^2/Hz], aerodynamic damping ratio
+        [-], spectral rms and peak acceleration [m/s^2]), warnings, cautions.
+
+    Raises
+    ------
+    CaseError
+        If the case has no [wind] and [building] tables.
+
+    References
+    ----------
+    EN 1991-1-4:2005+A1:2010, Annex B (procedure 1) and Annex F (F.18).
+    """
     if case.site is None:
         raise CaseError(f"{case.path}: 'tmd wind' needs a case with [wind] and [building]")
     z_s = float(reference_height(case.site, case.building))
