@@ -105,7 +105,15 @@ class BankSettings:
     prune_share: float = 0.01
 
     def candidates(self) -> tuple[np.ndarray, np.ndarray]:
-        """Frequency ratios and damping ratios of every candidate, flattened."""
+        """Return the frequency ratios and damping ratios of every candidate, flattened.
+
+        Returns
+        -------
+        frequency_ratios : numpy.ndarray
+            f_j / f_s of each candidate [-].
+        damping_ratios : numpy.ndarray
+            zeta_j of each candidate [-], referred to its own frequency.
+        """
         r, z = np.meshgrid(np.asarray(self.frequency_ratios, float),
                            np.asarray(self.damping_ratios, float), indexing="ij")
         return r.ravel(), z.ravel()
@@ -117,6 +125,25 @@ class BankIterate:
 
     ``mass_ratios`` are m_j / M* of every candidate (zero where unused);
     ``frequency_hz`` and ``damping_ratio`` the candidates' tunings.
+
+    Parameters
+    ----------
+    mass_ratio : float
+        Total bank mass over the modal mass M* [-].
+    mass_ratios : tuple of float
+        m_j / M* of every candidate [-].
+    frequency_hz : tuple of float
+        Each candidate's own frequency [Hz].
+    damping_ratio : tuple of float
+        Each candidate's damping ratio [-], referred to its own frequency.
+    peak_acceleration_m_s2 : float
+        Worst peak acceleration over the scenarios [m/s^2].
+    max_stroke_ratio : float
+        Worst peak stroke over the stroke limit [-] (0 without a limit).
+    step : float
+        Fraction of the convex step taken (after back-offs) [-]; 0 at the start.
+    status : str
+        The convex solver's status for the step ("start" for the first iterate).
     """
 
     mass_ratio: float
@@ -131,7 +158,31 @@ class BankIterate:
 
 @dataclass(frozen=True)
 class BankDesign:
-    """A sized bank: the dampers in use and how the iteration went (SI)."""
+    """A sized bank: the dampers in use and how the iteration went (SI).
+
+    Parameters
+    ----------
+    mass_kg : numpy.ndarray
+        Mass of each damper in the bank [kg].
+    frequency_hz : numpy.ndarray
+        Each damper's own frequency [Hz].
+    damping_ratio : numpy.ndarray
+        Each damper's damping ratio [-], referred to its own frequency.
+    mass_ratio : float
+        Total bank mass over M* [-].
+    meets_target : bool
+        Whether the bank meets the target in every scenario.
+    governed_by : str
+        "target" (a stationary point of the convex iteration) or "mass" (no
+        scaling within the largest mass ratio meets the target).
+    message : str
+        The outcome in one plain sentence.
+    history : tuple of BankIterate
+        The accepted iterates, first to last.
+    pruned : tuple of dict
+        Members removed as too light, each with ``mass_kg``,
+        ``frequency_hz`` and ``damping_ratio``.
+    """
 
     mass_kg: np.ndarray
     frequency_hz: np.ndarray
@@ -145,11 +196,13 @@ class BankDesign:
 
     @property
     def absorbers(self) -> Absorbers:
+        """The bank as the engine's absorbers (one design, every damper)."""
         return Absorbers.tuned_masses(self.mass_kg[None, :], self.frequency_hz[None, :],
                                       self.damping_ratio[None, :])
 
     @property
     def dampers(self) -> list[dict]:
+        """Each damper's ``mass_kg``, ``frequency_hz`` and ``damping_ratio``, as dicts."""
         return [{"mass_kg": float(m), "frequency_hz": float(f), "damping_ratio": float(z)}
                 for m, f, z in zip(self.mass_kg, self.frequency_hz, self.damping_ratio,
                                    strict=True)]
@@ -225,6 +278,7 @@ def size_tmd_bank(loaded: LoadedMode, target_peak_m_s2: float, *, max_mass_ratio
     Parameters
     ----------
     loaded : LoadedMode
+        The mode under its design load, with the reporting conventions.
     target_peak_m_s2 : float
         Peak acceleration target at the evaluation height, in every scenario
         [m/s^2].

@@ -82,6 +82,25 @@ class CoupledSizing:
     ``mass_ratio`` is the total liquid mass over M*; ``frequency_hz`` and
     ``damping_ratio`` are the absorber's own; ``governed_by`` as in
     :class:`tmd.design.Sizing` ("target", "stroke", "mass", "bare").
+
+    Parameters
+    ----------
+    mass_ratio : float
+        Total absorber (liquid) mass over the modal mass M* [-].
+    frequency_hz : float
+        The absorber's own natural frequency [Hz].
+    damping_ratio : float
+        Equivalent linear damping ratio, referred to the absorber's own
+        frequency [-].
+    coupling : float
+        beta in (0, 1] [-]: alpha = B / L for a column, sqrt(m_1 / m_w) for a
+        tank.
+    meets_target : bool
+        Whether the design's peak acceleration meets the target.
+    governed_by : str
+        What decided the mass, as in :class:`tmd.design.Sizing`.
+    message : str
+        The outcome in one plain sentence.
     """
 
     mass_ratio: float
@@ -93,13 +112,68 @@ class CoupledSizing:
     message: str
 
     def absorbers(self, mode: Mode) -> Absorbers:
+        """Return the engine's description of this absorber on ``mode``.
+
+        Parameters
+        ----------
+        mode : Mode
+            The structural mode (modal mass M* [kg], mode shape = 1 at the
+            absorber).
+
+        Returns
+        -------
+        Absorbers
+            One absorber of mass mu M* [kg] with this coupling.
+        """
         return Absorbers([self.mass_ratio * mode.modal_mass_kg], [self.frequency_hz],
                          [self.damping_ratio], [self.coupling])
 
 
 @dataclass(frozen=True)
 class ColumnDesign:
-    """A sized liquid column damper with what its specification needs (SI)."""
+    """A sized liquid column damper with what its specification needs (SI).
+
+    Parameters
+    ----------
+    liquid_mass_kg : float
+        Total liquid mass m_l of all columns [kg].
+    mass_ratio : float
+        m_l / M* [-].
+    participating_mass_kg : float
+        alpha^2 m_l [kg], the part that acts as a tuned mass.
+    rigid_mass_kg : float
+        (1 - alpha^2) m_l [kg], the part that moves with the structure.
+    frequency_hz : float
+        The column's natural frequency sqrt(2 g / L) / (2 pi) [Hz].
+    length_ratio : float
+        alpha = B / L [-].
+    liquid_length_m : float
+        L, total liquid length along the centre line [m].
+    horizontal_length_m : float
+        B = alpha L [m].
+    vertical_liquid_height_m : float
+        Still liquid height in each vertical leg, (1 - alpha) L / 2 [m].
+    cross_section_area_m2 : float
+        Cross-section A of each column [m^2].
+    columns : int
+        Number of identical columns.
+    head_loss_coefficient : float
+        xi [-] of the orifice that gives the equivalent damping at the design
+        response.
+    equivalent_damping_ratio : float
+        Statistically linearised damping ratio at the design response [-],
+        referred to the column's frequency.
+    sigma_excursion_m, peak_excursion_m : float
+        Rms and peak liquid displacement along the column [m].
+    vertical_leg_height_m : float
+        Still liquid height plus the peak excursion [m]: the least leg height.
+    meets_target : bool
+        Whether the design's peak acceleration meets the target.
+    governed_by : str
+        What decided the mass, as in :class:`tmd.design.Sizing`.
+    message : str
+        The outcome in one plain sentence.
+    """
 
     liquid_mass_kg: float
     mass_ratio: float
@@ -122,7 +196,19 @@ class ColumnDesign:
     message: str
 
     def absorbers(self, mode: Mode | None = None) -> Absorbers:
-        """The equivalent-linear column at its design response."""
+        """Return the equivalent-linear column at its design response.
+
+        Parameters
+        ----------
+        mode : Mode, optional
+            Unused: the column's mass is absolute. Accepted so that every
+            option's design answers ``absorbers(mode)``.
+
+        Returns
+        -------
+        Absorbers
+            One absorber: mass m_l [kg], coupling alpha, the equivalent damping.
+        """
         return Absorbers([self.liquid_mass_kg], [self.frequency_hz],
                          [self.equivalent_damping_ratio], [self.length_ratio])
 
@@ -136,11 +222,12 @@ class ColumnDesign:
 def size_liquid_column(loaded: LoadedMode, target_peak_m_s2: float, *, max_mass_ratio: float,
                        settings: ColumnSettings = ColumnSettings(),
                        iterations: int = 6) -> ColumnDesign:
-    """Least liquid mass of a TLCD that meets a peak-acceleration target.
+    """Return the least liquid mass of a TLCD that meets a peak-acceleration target.
 
     Parameters
     ----------
     loaded : LoadedMode
+        The mode under its design load, with the reporting conventions.
     target_peak_m_s2 : float
         Peak acceleration target at the evaluation height [m/s^2].
     max_mass_ratio : float
@@ -214,11 +301,12 @@ def _column_design(loaded, sizing: CoupledSizing, settings: ColumnSettings) -> C
 def least_coupled_mass(loaded: LoadedMode, target_peak_m_s2: float, coupling: float, *,
                        max_mass_ratio: float, max_coordinate_m: float | None = None,
                        min_mass_ratio: float = 1e-4) -> CoupledSizing:
-    """Least total mass of one linear absorber of coupling beta meeting the target.
+    """Return the least total mass of one linear absorber of coupling beta meeting the target.
 
     Parameters
     ----------
     loaded : LoadedMode
+        The mode under its design load, with the reporting conventions.
     target_peak_m_s2 : float
         Peak acceleration target [m/s^2].
     coupling : float
@@ -228,6 +316,8 @@ def least_coupled_mass(loaded: LoadedMode, target_peak_m_s2: float, coupling: fl
     max_coordinate_m : float, optional
         Limit on the peak of the absorber coordinate r [m] (liquid excursion
         for a column).
+    min_mass_ratio : float
+        Smallest total absorber mass over M* searched [-].
 
     Returns
     -------
@@ -291,7 +381,7 @@ def least_coupled_mass(loaded: LoadedMode, target_peak_m_s2: float, coupling: fl
 
 
 def _split_case(loaded: LoadedMode, mass_ratio: float, coupling: float):
-    """The mode carrying the rigid part of the absorber, and the TMD mass ratio on it."""
+    """Return the mode carrying the rigid part of the absorber, and the TMD mass ratio on it."""
     m = loaded.mode
     scale = 1.0 + (1.0 - coupling**2) * mass_ratio
     root = math.sqrt(scale)
@@ -310,6 +400,7 @@ def velocity_proportional_fixed_point(loaded: LoadedMode, mass_kg: float, freque
     Parameters
     ----------
     loaded : LoadedMode
+        The mode under its design load, with the reporting conventions.
     mass_kg, frequency_hz, coupling : float
         The absorber (total mass [kg], own frequency [Hz], beta [-]).
     gain_s_per_m : float

@@ -26,7 +26,22 @@ class SwingAngleWarning(UserWarning):
 
 @dataclass(frozen=True)
 class PendulumDesign:
-    """A sized pendulum damper: the TMD design plus its geometry (SI)."""
+    """A sized pendulum damper: the TMD design plus its geometry (SI).
+
+    Parameters
+    ----------
+    tmd : TmdDesign
+        The translational TMD the pendulum realises (mass, tuning, responses).
+    length_m : float
+        Total pendulum length L = g / (2 pi f_d)^2 [m].
+    stages : int
+        Number of equal nested stages.
+    stage_length_m : float
+        Length of each stage, L / n [m].
+    peak_swing_angle_rad : float
+        Swing angle at the peak stroke, asin(u_peak / L) [rad]; NaN when the
+        stroke exceeds the length.
+    """
 
     tmd: TmdDesign
     length_m: float
@@ -39,11 +54,12 @@ def size_pendulum(loaded: LoadedMode, target_peak_m_s2: float, *, max_mass_ratio
                   max_stroke_m: float | None = None,
                   settings: PendulumSettings = PendulumSettings()) -> tuple[Sizing,
                                                                              PendulumDesign | None]:
-    """Least-mass pendulum damper meeting a peak-acceleration target.
+    """Return the least-mass pendulum damper meeting a peak-acceleration target.
 
     Parameters
     ----------
     loaded : LoadedMode
+        The mode under its design load, with the reporting conventions.
     target_peak_m_s2 : float
         Peak acceleration target [m/s^2].
     max_mass_ratio : float
@@ -51,6 +67,7 @@ def size_pendulum(loaded: LoadedMode, target_peak_m_s2: float, *, max_mass_ratio
     max_stroke_m : float, optional
         Peak stroke (horizontal swing of the mass) limit [m].
     settings : PendulumSettings
+        How the pendulum is built (number of stages).
 
     Returns
     -------
@@ -61,6 +78,10 @@ def size_pendulum(loaded: LoadedMode, target_peak_m_s2: float, *, max_mass_ratio
     Notes
     -----
     L = g / (2 pi f_d)^2, stage length L / n, theta = asin(u_peak / L).
+
+    References
+    ----------
+    Small-swing pendulum, common practice; see :mod:`tmd.dampers.pendulum`.
     """
     sizing = least_mass(loaded, target_peak_m_s2, max_mass_ratio=max_mass_ratio,
                         max_stroke_m=max_stroke_m)
@@ -71,7 +92,7 @@ def size_pendulum(loaded: LoadedMode, target_peak_m_s2: float, *, max_mass_ratio
 
 def pendulum_design(design: TmdDesign, settings: PendulumSettings = PendulumSettings()
                     ) -> PendulumDesign:
-    """The pendulum geometry of a TMD design.
+    """Return the pendulum geometry of a TMD design.
 
     Parameters
     ----------

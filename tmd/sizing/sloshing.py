@@ -33,7 +33,58 @@ from tmd.sizing.liquid_column import CoupledSizing, _stroke_m2, least_coupled_ma
 
 @dataclass(frozen=True)
 class TankDesign:
-    """Sized sloshing tanks with what their specification needs (SI)."""
+    """Sized sloshing tanks with what their specification needs (SI).
+
+    All zero (and ``tank_count`` 0) when no tank is needed.
+
+    Parameters
+    ----------
+    water_mass_kg : float
+        Total water mass m_w of all tanks [kg].
+    mass_ratio : float
+        m_w / M* [-].
+    participating_mass_kg : float
+        The first mode's sloshing mass m_1 [kg].
+    rigid_mass_kg : float
+        m_w - m_1 [kg], the water that moves with the tank.
+    coupling : float
+        beta = sqrt(m_1 / m_w) [-].
+    frequency_hz : float
+        First sloshing frequency f_1 [Hz].
+    tank_length_m : float
+        L, inside length in the direction of motion [m].
+    water_depth_m : float
+        h, still water depth [m].
+    tank_width_m : float
+        b, inside width of each tank across the motion [m].
+    tank_count : int
+        Number of equal tanks side by side.
+    screen_positions : tuple of float
+        Screen positions x_s / L from one wall [-].
+    screen_loss_coefficient : float
+        C_l of each screen [-] giving the equivalent damping at the design
+        response (0 without screens).
+    equivalent_damping_ratio : float
+        Statistically linearised damping ratio at the design response [-],
+        referred to f_1, not below the intrinsic one.
+    intrinsic_damping_ratio : float
+        Boundary-layer damping ratio of the unscreened tank [-].
+    damping_gain_s_per_m : float
+        Screen damping ratio per unit rms velocity of the absorber coordinate
+        r = beta u [s/m].
+    peak_sloshing_displacement_m : float
+        Peak displacement u of the sloshing mass relative to the tank [m].
+    peak_free_surface_elevation_m : float
+        Peak wave height at the wall A [m], to compare with the freeboard.
+    freeboard_m : float or None
+        Tank height above still water [m] (None: no limit).
+    meets_target : bool
+        Whether the design's peak acceleration meets the target.
+    governed_by : str
+        What decided the mass, as in :class:`tmd.design.Sizing`.
+    message : str
+        The outcome in one plain sentence.
+    """
 
     water_mass_kg: float
     mass_ratio: float
@@ -58,23 +109,38 @@ class TankDesign:
     message: str
 
     def absorbers(self, mode=None) -> Absorbers:
-        """The equivalent-linear tanks at their design response."""
+        """Return the equivalent-linear tanks at their design response.
+
+        Parameters
+        ----------
+        mode : Mode, optional
+            Unused: the water mass is absolute. Accepted so that every
+            option's design answers ``absorbers(mode)``.
+
+        Returns
+        -------
+        Absorbers
+            One absorber: mass m_w [kg], coupling beta, the equivalent damping.
+        """
         return Absorbers([self.water_mass_kg], [self.frequency_hz],
                          [self.equivalent_damping_ratio], [self.coupling])
 
 
 def size_sloshing_tanks(loaded: LoadedMode, target_peak_m_s2: float, *, max_mass_ratio: float,
                         settings: TankSettings = TankSettings()) -> TankDesign:
-    """Least water mass of screened rectangular tanks meeting a peak-acceleration target.
+    """Return the least water mass of screened rectangular tanks meeting a peak target.
 
     Parameters
     ----------
     loaded : LoadedMode
+        The mode under its design load, with the reporting conventions.
     target_peak_m_s2 : float
         Peak acceleration target [m/s^2].
     max_mass_ratio : float
         Largest water mass over M* [-].
     settings : TankSettings
+        Layout: depth ratio h / L, largest tank width, freeboard, screen
+        positions and the water's properties.
 
     Returns
     -------

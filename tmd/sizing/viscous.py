@@ -76,7 +76,37 @@ class ViscousSettings:
 
 @dataclass(frozen=True)
 class ViscousDesign:
-    """Added damping that meets the target, and the dampers that give it (SI)."""
+    """Added damping that meets the target, and the dampers that give it (SI).
+
+    Parameters
+    ----------
+    total_damping_ratio : float
+        zeta_total, the mode's damping ratio with the dampers [-].
+    added_damping_ratio : float
+        zeta_add = zeta_total - zeta_s [-].
+    modal_damping_n_s_per_m : float
+        c_add = 2 zeta_add M* omega_s, the added modal dashpot [N s/m].
+    damper_constant_n_s_per_m : float
+        c_d of each linear damper [N s/m].
+    damper_count : int
+        Number n of identical dampers.
+    deformation_per_modal_displacement : float
+        phi_d, damper deformation per unit modal displacement [-].
+    sigma_acceleration_m_s2, peak_acceleration_m_s2 : float
+        Rms and peak acceleration at the evaluation height [m/s^2].
+    peak_displacement_m : float
+        Peak modal displacement at the reference level [m].
+    peak_damper_deformation_m : float
+        phi_d times the peak displacement: each damper's peak stroke [m].
+    peak_modal_damping_force_n : float
+        c_add v_peak, the peak total modal damping force [N].
+    peak_force_per_damper_n : float
+        c_d phi_d v_peak, each damper's peak force [N].
+    meets_target : bool
+        Whether the peak acceleration meets the target.
+    message : str
+        The outcome in one plain sentence.
+    """
 
     total_damping_ratio: float
     added_damping_ratio: float
@@ -97,11 +127,12 @@ class ViscousDesign:
 def size_added_damping(loaded: LoadedMode, target_peak_m_s2: float, *,
                        settings: ViscousSettings = ViscousSettings(),
                        max_damping_ratio: float = MAX_DAMPING_RATIO) -> ViscousDesign:
-    """Supplemental modal damping that meets a peak-acceleration target.
+    """Return the supplemental modal damping that meets a peak-acceleration target.
 
     Parameters
     ----------
     loaded : LoadedMode
+        The mode under its design load, with the reporting conventions.
     target_peak_m_s2 : float
         Peak acceleration target at the evaluation height [m/s^2].
     settings : ViscousSettings
@@ -119,6 +150,11 @@ def size_added_damping(loaded: LoadedMode, target_peak_m_s2: float, *,
     c_d = 2 zeta_add M* omega_s / (n phi_d^2). Peak velocity uses Davenport's
     factor with nu_v = sqrt(m4 / m2) of the displacement spectrum; the force
     per damper is c_d phi_d v_peak and the total modal force c_add v_peak.
+
+    References
+    ----------
+    Constantinou, M. C. and Symans, M. D. (1993), The Structural Design of
+    Tall Buildings 2, 77-92 (from memory).
     """
     m = loaded.mode
 
@@ -171,7 +207,21 @@ def _assess_damped(loaded: LoadedMode, damping_ratio, frequency_hz=None):
 
 
 def peak_acceleration_with_dashpot(loaded: LoadedMode, added_damping_ratio: float, frequency_scale):
-    """Peak acceleration [m/s^2] with the added dashpot kept as the structure's frequency moves.
+    """Return the peak acceleration [m/s^2] with the added dashpot kept as f_s moves.
+
+    Parameters
+    ----------
+    loaded : LoadedMode
+        The mode under its design load, with the reporting conventions.
+    added_damping_ratio : float
+        zeta_add at the nominal frequency [-].
+    frequency_scale : float or array
+        s = f_s' / f_s [-], the structure's frequency factor.
+
+    Returns
+    -------
+    numpy.ndarray
+        Peak acceleration at the evaluation height [m/s^2] at each s.
 
     Notes
     -----
@@ -185,7 +235,21 @@ def peak_acceleration_with_dashpot(loaded: LoadedMode, added_damping_ratio: floa
 
 
 def velocity_statistics(loaded: LoadedMode, damping_ratio: float) -> tuple[float, float]:
-    """Rms modal velocity [m/s] and its up-crossing rate [Hz] of the damped bare mode.
+    """Return the rms modal velocity [m/s] and its up-crossing rate [Hz] of the damped mode.
+
+    Parameters
+    ----------
+    loaded : LoadedMode
+        The mode under its design load, with the reporting conventions.
+    damping_ratio : float
+        Total modal damping ratio with the dampers [-].
+
+    Returns
+    -------
+    sigma_v : float
+        Rms modal velocity at the reference level [m/s].
+    nu_v : float
+        Its mean zero up-crossing rate [Hz].
 
     Notes
     -----
@@ -202,11 +266,27 @@ def velocity_statistics(loaded: LoadedMode, damping_ratio: float) -> tuple[float
 
 
 def peak_velocity_m_s(loaded: LoadedMode, damping_ratio: float) -> float:
-    """Expected peak modal velocity at the damper level [m/s]: g(nu_v, T) sigma_v.
+    """Return the expected peak modal velocity at the damper level [m/s].
+
+    Parameters
+    ----------
+    loaded : LoadedMode
+        The mode under its design load, with the reporting conventions.
+    damping_ratio : float
+        Total modal damping ratio with the dampers [-].
+
+    Returns
+    -------
+    float
+        v_peak = g(nu_v, T) sigma_v [m/s].
 
     Notes
     -----
     Davenport's (1964) peak factor on :func:`velocity_statistics`.
+
+    References
+    ----------
+    Davenport, A. G. (1964), Proc. ICE 28(2), 187-196.
     """
     sigma_v, nu_v = velocity_statistics(loaded, damping_ratio)
     return float(davenport_peak_factor(nu_v, loaded.duration_s)) * sigma_v
@@ -214,7 +294,7 @@ def peak_velocity_m_s(loaded: LoadedMode, damping_ratio: float) -> float:
 
 def damper_constant_n_s_per_m(added_damping_ratio, frequency_hz, modal_mass_kg,
                               deformation_per_modal_displacement=1.0, damper_count=1):
-    """Linear damper constant c_d [N s/m] giving an added modal damping ratio.
+    """Return the linear damper constant c_d [N s/m] giving an added modal damping ratio.
 
     Parameters
     ----------
@@ -230,6 +310,16 @@ def damper_constant_n_s_per_m(added_damping_ratio, frequency_hz, modal_mass_kg,
     Notes
     -----
     c_d = 2 zeta_add M* omega_s / (n phi_d^2) (module notes).
+
+    Returns
+    -------
+    float or numpy.ndarray
+        c_d [N s/m].
+
+    References
+    ----------
+    Constantinou, M. C. and Symans, M. D. (1993), The Structural Design of
+    Tall Buildings 2, 77-92 (from memory).
     """
     omega = TWO_PI * np.asarray(frequency_hz, float)
     return (2.0 * np.asarray(added_damping_ratio, float) * modal_mass_kg * omega
