@@ -99,7 +99,15 @@ class ModeShape:
                         axis=-1)
 
     def largest_component(self) -> tuple[str, float]:
-        """The name and value of the largest |component| over the height."""
+        """Return the name and value of the largest |component| over the height.
+
+        Returns
+        -------
+        name : str
+            "x", "y" or "theta".
+        value : float
+            The signed component: [-] for a sway, [rad] for the rotation.
+        """
         best = max(((name, value) for name, column in
                     (("x", self.x), ("y", self.y), ("theta", self.theta)) for value in column),
                    key=lambda item: abs(item[1]))
@@ -183,7 +191,7 @@ class Plan:
     points: tuple[PlanPoint, ...]
 
     def contains(self, x_m: float, y_m: float) -> bool:
-        """True when (x, y) lies in the plan (boundary included).
+        """Tell whether (x, y) lies in the plan (boundary included).
 
         Parameters
         ----------
@@ -198,7 +206,7 @@ class Plan:
 
     @staticmethod
     def corners(x_min_m, x_max_m, y_min_m, y_max_m) -> tuple[PlanPoint, ...]:
-        """The four corners, named by their side of each axis.
+        """Return the four corners, named by their side of each axis.
 
         Parameters
         ----------
@@ -299,7 +307,7 @@ class BuildingModel:
         return np.array([phi[:, 0] - phi[:, 2] * dy, phi[:, 1] + phi[:, 2] * dx])
 
     def torsional_coefficients(self, x_m: float, y_m: float, height_m: float) -> np.ndarray:
-        """The rotation's part of :meth:`motion_coefficients`, shape (2, n).
+        """Return the rotation's part of :meth:`motion_coefficients`, shape (2, n).
 
         Parameters
         ----------
@@ -316,11 +324,24 @@ class BuildingModel:
         return np.array([-phi[:, 2] * dy, phi[:, 2] * dx])
 
     def axes(self) -> list[tuple[int, str]]:
-        """Absorber axes in engine order: (damper index, direction)."""
+        """Return the absorber axes in engine order.
+
+        Returns
+        -------
+        list of (int, str)
+            (damper index, direction "x" or "y") of each axis.
+        """
         return [(j, d) for j, damper in enumerate(self.dampers) for d in damper.directions]
 
     def participation(self) -> np.ndarray:
-        """Participation vectors of every absorber axis, shape (N, n) [-]."""
+        """Return the participation vectors of every absorber axis.
+
+        Returns
+        -------
+        numpy.ndarray, shape (N, n)
+            Motion of axis j's direction at its damper per unit modal
+            coordinate of mode i [-] (the mode shapes at the dampers).
+        """
         rows = []
         for j, direction in self.axes():
             d = self.dampers[j]

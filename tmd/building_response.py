@@ -36,23 +36,23 @@ from tmd.resultant_peak import mean_maximum_resultant
 class BuildingAssessment:
     """Responses of a batch of designs (leading axes = the batch).
 
-    Attributes
+    Parameters
     ----------
     sigma_acceleration_m_s2, peak_acceleration_m_s2 : arrays (..., P, 2)
-        a_x, a_y at each point.
+        Rms and peak of a_x, a_y at each of the P points [m/s^2].
     sigma_resultant_m_s2, peak_resultant_m_s2 : arrays (..., P)
-        The resultant plan acceleration.
+        The resultant plan acceleration [m/s^2].
     torsional_share : array (..., P)
         rms of the rotation's part of the resultant over the rms resultant [-].
     sigma_stroke_m, peak_stroke_m : arrays (..., N)
-        Per absorber axis.
+        Rms and peak stroke relative to the structure per absorber axis [m].
     sigma_force_n, peak_force_n : arrays (..., N)
-        Damper internal (spring + dashpot) force per axis.
+        Damper internal (spring + dashpot) force per axis [N].
     peak_plan_stroke_m : array (..., D)
-        Per damper: peak of the resultant plan stroke (the axis peak for a
+        Per damper: peak of the resultant plan stroke [m] (the axis peak for a
         one-axis damper).
     top_decade_share : array (..., P, 2)
-        Share of each acceleration's m2 from the top decade of the load range.
+        Share of each acceleration's m2 from the top decade of the load range [-].
     """
 
     sigma_acceleration_m_s2: np.ndarray
@@ -175,8 +175,11 @@ def assess_building(model: BuildingModel, load: CrossSpectrum, duration_s: float
 
 
 def _pairs(model: BuildingModel) -> np.ndarray:
-    """Cross moments needed: (a_x, a_y) of each point and the axis pair of each bidirectional
-    damper, in the order of :meth:`BuildingModel.output_rows`."""
+    """Return the cross moments needed, in the order of :meth:`BuildingModel.output_rows`.
+
+    They are (a_x, a_y) of each point and the axis pair of each bidirectional
+    damper.
+    """
     points = len(model.plan.points)
     pairs = [(4 * p, 4 * p + 1) for p in range(points)]
     axes = model.axes()

@@ -46,7 +46,8 @@ class CrossSpectrum(Protocol):
     f_min_hz: float
     f_max_hz: float
 
-    def __call__(self, frequency_hz: np.ndarray) -> np.ndarray: ...
+    def __call__(self, frequency_hz: np.ndarray) -> np.ndarray:
+        """Evaluate the one-sided cross-spectral matrix S_F(f), shape f.shape + (n, n)."""
 
 
 @dataclass(frozen=True)
@@ -90,7 +91,7 @@ class UncorrelatedForces:
         return tuple(points)
 
     def diagonal(self, frequency_hz: np.ndarray) -> np.ndarray:
-        """The diagonal S_F,ii(f), shape ``frequency_hz.shape + (n,)`` [N^2/Hz].
+        """Return the diagonal S_F,ii(f), shape ``frequency_hz.shape + (n,)`` [N^2/Hz].
 
         Parameters
         ----------
@@ -106,7 +107,7 @@ class UncorrelatedForces:
                         axis=-1)
 
     def __call__(self, frequency_hz):
-        """The matrix S_F(f), shape ``frequency_hz.shape + (n, n)``, complex [N^2/Hz].
+        """Return the matrix S_F(f), shape ``frequency_hz.shape + (n, n)``, complex [N^2/Hz].
 
         Parameters
         ----------
@@ -195,7 +196,7 @@ class TabulatedCrossSpectrum:
         return tuple(self.frequency_hz.tolist())
 
     def __call__(self, frequency_hz):
-        """The matrix S_F(f), shape ``frequency_hz.shape + (n, n)``, complex [N^2/Hz].
+        """Return the matrix S_F(f), shape ``frequency_hz.shape + (n, n)``, complex [N^2/Hz].
 
         Parameters
         ----------

@@ -122,13 +122,13 @@ class OutputRows:
 class OutputMoments:
     """Spectral moment matrices of a group of outputs, for a batch of designs.
 
-    Attributes
+    Parameters
     ----------
     m0, m1, m2 : arrays, shape batch + (o, o), complex
         integral of f^k h S_F h^H df [unit_i unit_j Hz^k]; Hermitian.
     top_decade_m0, top_decade_m2 : arrays, shape batch + (o,)
         Shares of each output's m0 and m2 from the top decade of the load's
-        frequency range (zero for an unbounded range).
+        frequency range (zero for an unbounded range) [-].
     names : tuple of str
         The outputs' names.
     """
@@ -162,7 +162,13 @@ class OutputMoments:
             return np.sqrt(self.second_moment / self.variance)
 
     def covariance(self) -> np.ndarray:
-        """Covariance matrix E[y_i y_j] = Re(m0_ij), shape batch + (o, o) [unit^2]."""
+        """Return the covariance matrix E[y_i y_j] = Re(m0_ij) [unit_i unit_j].
+
+        Returns
+        -------
+        numpy.ndarray, shape batch + (o, o)
+            Real, symmetric; its diagonal is :attr:`variance`.
+        """
         return np.real(self.m0)
 
 
@@ -238,7 +244,7 @@ def _structure(frequency_hz, generalised_mass, damping_ratio):
 
 def extended_transfer(frequency_hz, frequency_s_hz, generalised_mass, damping_ratio,
                       absorbers: Absorbers, participation):
-    """Extended coordinates (q, r, p) per unit modal force on a frequency grid.
+    """Return the extended coordinates (q, r, p) per unit modal force on a frequency grid.
 
     Parameters
     ----------

@@ -53,6 +53,15 @@ class Moments:
     f^k S(f) df. m1 feeds Vanmarcke's bandwidth parameter
     q = sqrt(1 - m1^2 / (m0 m2)) (:mod:`tmd.peak`); it is optional so that a
     caller that needs only sigma and the up-crossing rate may leave it out.
+
+    Parameters
+    ----------
+    m0 : numpy.ndarray
+        Variance, integral of S(f) df [unit^2].
+    m2 : numpy.ndarray
+        Second moment, integral of f^2 S(f) df [unit^2 Hz^2].
+    m1 : numpy.ndarray, optional
+        First moment, integral of f S(f) df [unit^2 Hz].
     """
 
     m0: np.ndarray
@@ -81,7 +90,10 @@ class Moments:
 class SpectralResponse:
     """Moments of every response for a batch of designs.
 
-    Attributes
+    A response the caller did not ask for (``responses`` of
+    :func:`spectral_response`) is None.
+
+    Parameters
     ----------
     displacement : Moments
         Structure displacement at the damper level [m].
@@ -93,10 +105,7 @@ class SpectralResponse:
         Total force the absorbers put on the structure [N].
     acceleration_top_decade : tuple of arrays
         Shares of the acceleration's m0 and m2 that come from the top decade
-        of the load's frequency range (zero for an unbounded range).
-
-    A response the caller did not ask for (``responses`` of
-    :func:`spectral_response`) is None.
+        of the load's frequency range (zero for an unbounded range) [-].
     """
 
     displacement: Moments | None
@@ -107,7 +116,26 @@ class SpectralResponse:
 
 
 def structure_arrays(frequency_hz, modal_mass_kg, damping_ratio):
-    """Modal stiffness [N/m], dashpot [N s/m] and mass [kg] as arrays."""
+    """Return the modal stiffness [N/m], dashpot [N s/m] and mass [kg] as arrays.
+
+    Parameters
+    ----------
+    frequency_hz : float or array
+        Natural frequency f_s of the mode [Hz].
+    modal_mass_kg : float or array
+        Modal mass M* [kg], mode shape = 1 at the damper.
+    damping_ratio : float or array
+        Damping ratio zeta_s of the mode [-].
+
+    Returns
+    -------
+    stiffness : numpy.ndarray
+        k_s = M* (2 pi f_s)^2 [N/m].
+    damping : numpy.ndarray
+        c_s = 2 zeta_s M* (2 pi f_s) [N s/m].
+    mass : numpy.ndarray
+        M* [kg].
+    """
     fs, mass, zeta = (np.asarray(v, dtype=float) for v in
                       (frequency_hz, modal_mass_kg, damping_ratio))
     omega = TWO_PI * fs
@@ -232,7 +260,7 @@ def _quartic_roots(a3, a2, a1, a0):
 
 
 def _companion_roots(a3, a2, a1, a0):
-    """The same roots as eigenvalues of the companion matrix (``numpy.linalg.eigvals``).
+    """Return the same roots as eigenvalues of the companion matrix (``numpy.linalg.eigvals``).
 
     Cheaper than the radicals below ``SMALL_CHUNK`` designs, where the cost
     is numpy's per-call overhead rather than arithmetic.
@@ -279,10 +307,25 @@ def _state_matrix_poles(frequency_hz, modal_mass_kg, damping_ratio, absorbers: A
 
 
 def resonances(poles):
-    """Centre frequencies and half-widths [Hz] of the N + 1 resonant poles.
+    """Return the centre frequencies and half-widths [Hz] of the N + 1 resonant poles.
 
     Takes, per design, the N + 1 eigenvalues with the largest imaginary part
     (one of each conjugate pair; an overdamped pair contributes a pole at 0 Hz).
+
+    Parameters
+    ----------
+    poles : numpy.ndarray, shape batch + (2 (N + 1),)
+        Eigenvalues of the state matrix of structure + N absorbers [rad/s]
+        (:func:`closed_loop_poles`).
+
+    Returns
+    -------
+    centre : numpy.ndarray, shape batch + (N + 1,)
+        Im(p) / (2 pi) of each resonant pole [Hz], floored at 1e-9 of the
+        largest scale.
+    half_width : numpy.ndarray, shape batch + (N + 1,)
+        |Re(p)| / (2 pi) [Hz], the half-power half-width, floored at 1e-12 of
+        the largest scale.
     """
     n = poles.shape[-1] // 2
     order = np.argsort(poles.imag, axis=-1)[..., n:]
@@ -445,7 +488,7 @@ def spectral_response(frequency_hz, modal_mass_kg, damping_ratio, absorbers: Abs
 
 
 def load_breakpoints(spectrum: ForceSpectrum) -> np.ndarray:
-    """The spectrum's breakpoints where it bends sharply: panel edges of the grid [Hz].
+    """Return the spectrum's breakpoints where it bends sharply: panel edges of the grid [Hz].
 
     Parameters
     ----------
