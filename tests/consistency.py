@@ -57,6 +57,10 @@ _DIMENSIONLESS_KEYS = frozenset({
     "peak_factor_acceleration",
     # Reduced velocity U_H / (f_s b) of the vortex-shedding check (issue 10's key).
     "reduced_velocity",
+    # Reduced frequency n = f b / U_H and the normalised spectra f S_Q / (q_H b H)^2
+    # against it (issue 10; conventions.md "Normalised wind-tunnel spectra").
+    "reduced_frequency", "mode_reduced_frequency", "across_normalised_psd",
+    "along_normalised_psd",
 })
 # Relative slack for comparisons between two separate engine evaluations of
 # the same design (one batched, one single): rounding differences only.

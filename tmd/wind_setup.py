@@ -23,6 +23,7 @@ from typing import Annotated
 import numpy as np
 from pydantic import Field
 
+from tmd.normalised_spectra import normalise
 from tmd.spectra import TabulatedSpectrum
 from tmd.wind import acrosswind, vortex
 from tmd.wind.boundary_layer import CAUTION as BOUNDARY_LAYER_CAUTION
@@ -385,3 +386,93 @@ def across_wind_block(building, mode_frequency_hz: float, periods, top_speeds,
              "mode_shape_correction_per_m": acrosswind.mode_shape_correction(
                  h, building.mode_shape)} | shedding
     return block, notes + shedding_notes
+
+
+# Reduced frequencies n = f b / U_H of the spectra stored for the report: the
+# across-wind peaks (St_1 0.04-0.12, St_2 up to 0.5 over the model's range) and
+# the modes' n_s = f_s b / U_H (0.1-0.3 for tall buildings) lie well inside.
+SPECTRA_REDUCED_FREQUENCY = np.geomspace(0.005, 2.0, 91)
+
+
+def spectra_block(building, mode_frequency_hz: float, wind_loads, along_spectra,
+                  air_density_kg_m3: float) -> dict:
+    """Normalised along- and across-wind generalised-force spectra against reduced frequency.
+
+    Parameters
+    ----------
+    building : tmd.loads.Building
+        b (breadth normal to the wind), H and the mode shape (1 at the damper).
+    mode_frequency_hz : float
+        f_s [Hz].
+    wind_loads : sequence of tmd.wind_loads.WindLoad
+        The case's loads (their return periods and top speeds U_H).
+    along_spectra : sequence of ForceSpectrum or None
+        The along-wind modal force spectrum of each load [N^2/Hz] (None where
+        there is none, e.g. a wind-tunnel table).
+    air_density_kg_m3 : float
+        rho [kg/m^3] of q_H.
+
+    Returns
+    -------
+    dict
+        ``reduced_frequency`` (n = f b / U_H), ``across_normalised_psd`` and,
+        per return period, ``top_mean_speed_m_s``, ``mode_reduced_frequency``
+        (f_s b / U_H) and ``along_normalised_psd`` [-].
+
+    Notes
+    -----
+    Both spectra in the generalised-force normalisation f S_Q / (q_H b H)^2 of
+    ``conventions.md``, q_H = rho U_H^2 / 2. Across: (eta H)^2 Phi_M(n), Phi_M
+    the AIJ-RLB 2004 base-moment spectrum (:mod:`tmd.wind.acrosswind`) and
+    eta the mode-shape correction; it does not depend on U_H. Along: the strip
+    model's tabulated S_Q at f = n U_H / b (its log-log interpolant).
+    """
+    n = SPECTRA_REDUCED_FREQUENCY
+    b, h = building.breadth_m, building.height_m
+    eta = acrosswind.mode_shape_correction(h, building.mode_shape)
+    across = (eta * h) ** 2 * acrosswind.normalised_base_moment_psd(n, building.depth_m / b)
+    rows = []
+    for load, along in zip(wind_loads, along_spectra, strict=True):
+        u = load.top_mean_speed_m_s
+        row = {"return_period_years": load.return_period_years, "top_mean_speed_m_s": u,
+               "mode_reduced_frequency": mode_frequency_hz * b / u}
+        if along is not None:
+            f = n * u / b
+            row["along_normalised_psd"] = normalise(
+                f, along(f), top_mean_speed_m_s=u, breadth_m=b, height_m=h,
+                air_density_kg_m3=air_density_kg_m3)[1].tolist()
+        rows.append(row)
+    return {"normalisation": "f S_Q(f) / (q_H b H)^2 against n = f b / U_H",
+            "reduced_frequency": n.tolist(), "across_normalised_psd": across.tolist(),
+            "by_return_period": rows}
+
+
+def along_spectra(case) -> list:
+    """The along-wind modal force spectrum of each of a wind case's loads (None without a site).
+
+    Parameters
+    ----------
+    case : tmd.case.Case
+        A wind case (``wind_loads``, ``site``, ``building``, ``wind_settings``).
+
+    Returns
+    -------
+    list of ForceSpectrum or None
+        The loads' own spectra for an along-wind case; otherwise the strip
+        model (:func:`tmd.loads.modal_force_spectrum`) with the case's
+        [wind] settings, for comparison with the across-wind spectrum.
+    """
+    from tmd.loads import modal_force_spectrum  # deferred: only the spectra block needs it
+
+    loads = case.wind_loads
+    if case.site is None:
+        return [None] * len(loads)
+    table = case.tables.load if case.tables is not None else None
+    if case.direction_of_response == "along" and table is None:
+        return [w.spectrum for w in loads]
+    s, b = case.wind_settings, case.building.breadth_m
+    # tabulated just at the frequencies spectra_block reads (f = n U_H / b)
+    return [modal_force_spectrum(case.site, case.building, w.return_period_years,
+                                 spectrum=s["spectrum"], coherence=s["coherence"],
+                                 n_strips=s["n_strips"], frequency_hz=SPECTRA_REDUCED_FREQUENCY
+                                 * w.top_mean_speed_m_s / b) for w in loads]

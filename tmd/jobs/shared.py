@@ -19,6 +19,7 @@ from tmd.notes import DEFAULT_LOAD, about, collect
 from tmd.schema import CAUTIONS, SCHEMA_VERSION
 from tmd.verdict import meets_target
 from tmd.wind_loads import WindLoad
+from tmd.wind_setup import along_spectra, spectra_block
 
 
 def loaded_mode_of(case: Case, wind_load: WindLoad | None = None) -> LoadedMode:
@@ -220,8 +221,12 @@ def across_block(case: Case) -> dict:
     """
     if case.across_wind is None:
         return {}
+    rho = case.site.air_density_kg_m3 if case.site is not None else \
+        case.tables.load.air_density_kg_m3
+    spectra = spectra_block(case.building, case.mode.frequency_hz, case.wind_loads,
+                            along_spectra(case), rho)
     return {"direction_of_response": case.direction_of_response,
-            "across_wind": case.across_wind}
+            "across_wind": case.across_wind | {"spectra": spectra}}
 
 
 def vortex_keys(case: Case, period: float) -> dict:

@@ -16,6 +16,7 @@ from tmd.case import Case
 from tmd.defaults import FREQUENCY_BAND
 from tmd.jobs import loaded_mode_of
 from tmd.report import plots, series
+from tmd.report.acrosswind import across_wind_section
 from tmd.report.comfort import comfort_limits
 from tmd.report.extremes import end_stop_tables, recommendation_blocks
 from tmd.report.html import Callout, Figure, Section, document
@@ -158,6 +159,9 @@ class _Report:
     def files(self) -> dict[str, bytes]:
         sections = [self.job_section(), self.inputs_section(), self.bare_section(),
                     self.damper_section(), self.comfort_section()]
+        across = across_wind_section(self.results, self._figure, self._table)
+        if across is not None:
+            sections.append(across)
         if self.results.get("sweep") or self.results.get("band_design"):
             sections.append(self.robustness_section())
         if self.results.get("options"):
