@@ -149,3 +149,38 @@ def test_validity_range_names_the_input():
 def test_bad_side_ratio_is_refused():
     with pytest.raises(ValueError, match="D/B"):
         aw.strouhal_numbers(0.0)
+
+
+def test_acceleration_second_moment_grows_by_the_asymptote_in_every_decade():
+    # Why an across-wind case keeps its top-decade warning however far the table
+    # reaches (README): above its peaks F_L -> 4 kappa beta (1 + 0.6 beta) / pi (St/n)^2
+    # (the model's form, from memory), so S_Q -> K f^-3, and the bare mode's
+    # acceleration tends to the mass line |H_a| -> 1 / M*: each decade adds
+    # K ln(10) / M*^2 to m2 (closed form, int f^2 K f^-3 df = K ln 10). Reference:
+    # that closed form against the engine's m2 for tables ending at 100 and
+    # 1000 Hz; rtol 1e-3 (the neglected terms are (St U / (B f))^2 and (f_s / f)^2,
+    # below 1e-4 above 100 Hz).
+    from tmd.dampers.absorber import Absorbers
+    from tmd.response import spectral_response
+    from tmd.spectra import TabulatedSpectrum
+
+    b, d, h, u, rho = 40.0, 40.0, 200.0, 40.0, 1.25
+    mass, fs, zeta = 1e7, 0.2, 0.01
+
+    def m2(top_hz):
+        f = np.geomspace(1e-3, top_hz, int(200 * math.log10(top_hz / 1e-3)) + 1)
+        s = aw.generalised_force_psd(f, breadth_m=b, depth_m=d, height_m=h,
+                                     top_mean_speed_m_s=u, mode_shape=lambda z: z / h,
+                                     air_density_kg_m3=rho)
+        r = spectral_response(fs, mass, zeta, Absorbers.none(), TabulatedSpectrum(f, s),
+                              responses=("acceleration",))
+        return float(r.acceleration.m2)
+
+    (kappa, st, beta), = aw._peaks(d / b)
+    tail = 4 * kappa * beta * (1 + 0.6 * beta) / math.pi * st**2  # F_L n^2 as n -> inf
+    q_h = 0.5 * rho * u**2
+    eta = 1.0 / h  # linear mode shape (mode_shape_correction)
+    k = (eta**2 * (q_h * b * h**2) ** 2 * aw.rms_lift_coefficient(d / b) ** 2
+         / aw.model_spectrum_integral(d / b) * tail * (u / b) ** 2)
+    per_decade = k * math.log(10.0) / mass**2
+    assert m2(1e3) - m2(1e2) == pytest.approx(per_decade, rel=1e-3)
