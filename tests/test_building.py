@@ -295,3 +295,23 @@ def test_small_building_design_job_writes_results_and_tables(tmp_path):
     html = (tmp_path / "o" / "report.html").read_text()
     assert f'data-key="damper_axes.0.mass_kg" data-value="{axes[0]["mass_kg"]!r}"' in html
     assert "Preliminary sizing only" in html
+
+
+def test_lean_assessment_equals_the_full_one_on_what_tuning_uses(tmp_path):
+    # The tuning search's lean assessment (accelerations and strokes only) must
+    # give exactly the full assessment's values (tested against Lyapunov and
+    # quad in tests/test_modal_response.py); it only skips the other outputs.
+    _force_table(tmp_path / "fx.csv", 2.0e8)
+    _force_table(tmp_path / "ft.csv", 4.0e10, 0.35)
+    path = tmp_path / "c.toml"
+    path.write_text(SMALL.format(target=0.009))
+    case = load_building_case(path)
+    absorbers = axis_absorbers(case.model, 2e5, [[0.195, 0.2], [0.19, 0.21]],
+                               [[0.05, 0.06], [0.08, 0.04]])
+    load = case.design_loads[0].spectrum
+    full = assess_building(case.model, load, 600.0, absorbers)
+    lean = assess_building(case.model, load, 600.0, absorbers, resultant_peaks=False, lean=True)
+    for key in ("sigma_resultant_m_s2", "peak_acceleration_m_s2", "peak_stroke_m",
+                "peak_plan_stroke_m"):
+        np.testing.assert_allclose(getattr(lean, key), getattr(full, key), rtol=1e-13)
+    assert np.all(np.isnan(lean.peak_force_n)) and np.all(np.isnan(lean.torsional_share))

@@ -27,7 +27,7 @@ import numpy as np
 from tmd.building_modes import BuildingModel
 from tmd.cross_spectra import CrossSpectrum
 from tmd.dampers.absorber import Absorbers
-from tmd.modal_response import modal_response
+from tmd.modal_response import OutputMoments, OutputRows, modal_response
 from tmd.peak import davenport_peak_factor
 from tmd.resultant_peak import mean_maximum_resultant
 
@@ -100,8 +100,8 @@ def axis_absorbers(model: BuildingModel, total_mass_kg, frequency_hz, damping_ra
 
 def assess_building(model: BuildingModel, load: CrossSpectrum, duration_s: float,
                     absorbers: Absorbers, *, damping_ratio=None,
-                    resultant_peaks: bool = True, plan_strokes: bool = True
-                    ) -> BuildingAssessment:
+                    resultant_peaks: bool = True, plan_strokes: bool = True,
+                    lean: bool = False) -> BuildingAssessment:
     """Rms and peak responses of a batch of designs.
 
     Parameters
@@ -123,6 +123,10 @@ def assess_building(model: BuildingModel, load: CrossSpectrum, duration_s: float
     plan_strokes : bool
         Compute the bidirectional dampers' resultant stroke peaks (False
         leaves them NaN).
+    lean : bool
+        Only what a tuning search needs: the accelerations and strokes
+        (torsional shares, forces and top-decade shares are left NaN; about
+        half the outputs, so about half the work).
 
     Returns
     -------
@@ -135,8 +139,22 @@ def assess_building(model: BuildingModel, load: CrossSpectrum, duration_s: float
     rows = model.output_rows()
     phi = model.participation()
     points = len(model.plan.points)
-    r = modal_response(model.frequency_hz, model.generalised_mass, zeta, absorbers, phi, load,
-                       rows, pairs=_pairs(model))
+    pairs = _pairs(model)
+    if lean:
+        # Drop the torsional parts and the forces; keep the full layout (NaN there) so
+        # that the indexing below serves both.
+        keep = np.concatenate([(4 * np.arange(points)[:, None] + np.arange(2)).ravel(),
+                               4 * points + np.arange(count)])
+        sub = OutputRows(rows.rows[keep], rows.order[keep],
+                         tuple(rows.names[k] for k in keep))
+        where = np.full(rows.count, -1)
+        where[keep] = np.arange(keep.size)
+        part = modal_response(model.frequency_hz, model.generalised_mass, zeta, absorbers, phi,
+                              load, sub, pairs=where[pairs], top_decade=False)
+        r = _expand(part, keep, rows.count)
+    else:
+        r = modal_response(model.frequency_hz, model.generalised_mass, zeta, absorbers, phi,
+                           load, rows, pairs=pairs)
     var = r.variance
     nu = np.nan_to_num(r.upcrossing_hz)
     acc = slice(0, 4 * points)
@@ -147,6 +165,8 @@ def assess_building(model: BuildingModel, load: CrossSpectrum, duration_s: float
     sigma_res = np.sqrt(var_acc[..., 0, :].sum(axis=-1))
     with np.errstate(invalid="ignore", divide="ignore"):
         share = np.nan_to_num(np.sqrt(var_acc[..., 1, :].sum(axis=-1)) / sigma_res)
+    if lean:
+        share = np.full(share.shape, np.nan)
     top = r.top_decade_m2[..., acc].reshape(var_acc.shape)[..., 0, :]
     stroke = slice(4 * points, 4 * points + count)
     force = slice(4 * points + count, 4 * points + 2 * count)
@@ -172,6 +192,22 @@ def assess_building(model: BuildingModel, load: CrossSpectrum, duration_s: float
     plan_stroke = (np.stack(plan, axis=-1) if plan else np.zeros(sigma_res.shape[:-1] + (0,)))
     return BuildingAssessment(sigma_a, peak_a, sigma_res, peak_res, share, sigma_r, peak_r,
                               sigma_f, peak_f, plan_stroke, top)
+
+
+def _expand(part: OutputMoments, keep: np.ndarray, count: int) -> OutputMoments:
+    """Moments of a subset of outputs placed in the full output layout (NaN elsewhere)."""
+    batch = part.m0.shape[:-2]
+    moments = []
+    for m in (part.m0, part.m1, part.m2):
+        full = np.full(batch + (count, count), np.nan, dtype=complex)
+        full[..., keep[:, None], keep[None, :]] = m
+        moments.append(full)
+    shares = []
+    for share in (part.top_decade_m0, part.top_decade_m2):
+        full = np.full(batch + (count,), np.nan)
+        full[..., keep] = share
+        shares.append(full)
+    return OutputMoments(*moments, *shares, part.names)
 
 
 def _pairs(model: BuildingModel) -> np.ndarray:

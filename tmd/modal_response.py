@@ -288,7 +288,8 @@ def extended_transfer(frequency_hz, frequency_s_hz, generalised_mass, damping_ra
 
 def modal_response(frequency_hz, generalised_mass, damping_ratio, absorbers: Absorbers,
                    participation, load: CrossSpectrum, outputs: OutputRows, *,
-                   pairs=None, nodes_per_pole: int = NODES_PER_POLE) -> OutputMoments:
+                   pairs=None, nodes_per_pole: int = NODES_PER_POLE,
+                   top_decade: bool = True) -> OutputMoments:
     """Spectral moment matrices of a group of outputs for a batch of designs.
 
     Parameters
@@ -315,6 +316,9 @@ def modal_response(frequency_hz, generalised_mass, damping_ratio, absorbers: Abs
         matrices (the others are NaN); default the full matrices.
     nodes_per_pole : int
         Gauss-Legendre nodes per pole panel.
+    top_decade : bool
+        Compute the top-decade shares (False leaves them NaN: cheaper, for
+        a search that only needs the moments).
 
     Returns
     -------
@@ -367,10 +371,11 @@ def modal_response(frequency_hz, generalised_mass, damping_ratio, absorbers: Abs
                                    -3, 0))
     else:
         # Only the diagonal and the requested pairs: (F, o + K) products, not (F, o, o).
+        # (einsum: several times faster than summing the product array.)
         pick = np.asarray(pairs, dtype=int).reshape(-1, 2)
-        products = np.concatenate([np.sum(hs * hc, axis=-1),
-                                   np.sum(hs[..., pick[:, 0], :] * hc[..., pick[:, 1], :],
-                                          axis=-1)], axis=-1)
+        products = np.concatenate([np.einsum("...oj,...oj->...o", hs, hc),
+                                   np.einsum("...oj,...oj->...o", hs[..., pick[:, 0], :],
+                                             hc[..., pick[:, 1], :])], axis=-1)
         values = np.matmul(powers, products)  # (..., 3, o + K)
         o = outputs.count
         moments = []
@@ -381,7 +386,10 @@ def modal_response(frequency_hz, generalised_mass, damping_ratio, absorbers: Abs
             m[..., pick[:, 0], pick[:, 1]] = values[..., k, o:]
             m[..., pick[:, 1], pick[:, 0]] = np.conj(values[..., k, o:])
             moments.append(m)
-    share0, share2 = _top_decade(grid, weight, hs, hc, moments, load.f_max_hz)
+    if top_decade:
+        share0, share2 = _top_decade(grid, weight, hs, hc, moments, load.f_max_hz)
+    else:
+        share0 = share2 = np.full(batch + (outputs.count,), np.nan)
     return OutputMoments(*moments, share0, share2, outputs.names)
 
 
