@@ -26,6 +26,7 @@ from tmd.building_modes import (
     BuildingMode,
     BuildingModel,
     DamperPlacement,
+    MassDistribution,
     ModeShape,
     Plan,
     PlanPoint,
@@ -152,6 +153,12 @@ class SizingTable(_Table):
     max_mass_kg: Positive
 
 
+class MassTable(_Table):
+    heights_m: list[Finite]
+    mass_per_length_kg_m: list[Positive]
+    inertia_per_length_kg_m: list[Positive] | None = None
+
+
 class BuildingCaseTable(_Table):
     name: str
     description: str = ""
@@ -164,6 +171,7 @@ class BuildingCaseTable(_Table):
     wind_directions: list[DirectionEntry] = []
     target: BuildingTargetTable
     sizing: SizingTable | None = None
+    mass: MassTable | None = None
 
 
 @dataclass(frozen=True)
@@ -258,7 +266,7 @@ def load_building_case(path: str | Path) -> BuildingCase:
                             "they must add up to 1")
         for k, d in enumerate(dampers):
             _check_shape_at(path, f"[[dampers]] {k + 1} height_m", d.height_m, modes)
-    model = BuildingModel(modes, plan, dampers)
+    model = BuildingModel(modes, plan, dampers, _mass(path, table.mass, plan.height_m))
     if dampers and table.sizing is None:
         raise CaseError(f"{path}: [sizing] max_mass_kg is required when [[dampers]] are placed "
                         "(the largest total damper mass the least-mass search may use)")
@@ -349,6 +357,26 @@ def _mode(path: Path, k: int, e: ModesEntry, height_m: float) -> BuildingMode:
         raise CaseError(f"{where} ({name}): its largest shape component is a {kind}, so give "
                         f"{want} (and not {other})")
     return BuildingMode(name, e.frequency_hz, e.damping_ratio, mass, shape)
+
+
+def _mass(path: Path, mass: MassTable | None, height_m: float) -> MassDistribution | None:
+    if mass is None:
+        return None
+    z = list(mass.heights_m)
+    where = f"{path}: [mass]"
+    for key in ("mass_per_length_kg_m", "inertia_per_length_kg_m"):
+        values = getattr(mass, key)
+        if values is not None and len(values) != len(z):
+            raise CaseError(f"{where} {key}: {len(values)} values for {len(z)} heights in "
+                            "heights_m; give one value per height")
+    steps = np.diff(z)
+    if len(z) < 2 or np.any(steps <= 0) or z[0] != 0 or z[-1] != height_m:
+        raise CaseError(f"{where} heights_m = {z!r}: must be strictly increasing from 0 to the "
+                        f"plan's height_m = {height_m:g} (at least two heights)")
+    inertia = mass.inertia_per_length_kg_m
+    return MassDistribution(tuple(float(v) for v in z),
+                            tuple(float(v) for v in mass.mass_per_length_kg_m),
+                            None if inertia is None else tuple(float(v) for v in inertia))
 
 
 def _check_shape_covers(path, k, mode: BuildingMode, plan: Plan):
@@ -557,7 +585,7 @@ _TABLES = {(): BuildingCaseTable, ("modes",): ModesEntry, ("plan",): PlanTable,
            ("points",): PointEntry, ("dampers",): DamperEntry, ("modal_loads",): ModalLoadsTable,
            ("modal_loads", "cross"): CrossEntry, ("wind",): WindTable,
            ("wind_directions",): DirectionEntry, ("target",): BuildingTargetTable,
-           ("sizing",): SizingTable}
+           ("sizing",): SizingTable, ("mass",): MassTable}
 
 
 def _describe(path: Path, err: dict) -> str:

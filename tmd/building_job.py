@@ -23,7 +23,7 @@ from tmd.building_design import (
     least_building_mass,
     starting_tuning,
 )
-from tmd.building_response import BuildingAssessment, axis_absorbers
+from tmd.building_response import BuildingAssessment, assess_base, axis_absorbers
 from tmd.dampers.absorber import Absorbers
 from tmd.schema import CAUTIONS, SCHEMA_VERSION
 
@@ -90,6 +90,7 @@ def _build(case: BuildingCase) -> dict:
                                  "return_period_years": period, "component": component,
                                  "peak_acceleration_m_s2": worst}
         governing_rows.append(governing)
+    base_rows = _base_blocks(case, designed)
     if designed is not None:
         damped = assess_loads(model, list(case.design_loads), case.duration_s, designed)
         axis_rows = _axis_blocks(case, tuning, damped)
@@ -120,7 +121,28 @@ def _build(case: BuildingCase) -> dict:
         "dampers": damper_rows,
         "points": rows,
         "governing": governing_rows,
-    }
+    } | ({"base_moments": base_rows} if base_rows is not None else {})
+
+
+def _base_blocks(case: BuildingCase, designed) -> list[dict] | None:
+    """Base moments per return period and wind direction, bare and damped (with [mass])."""
+    model = case.model
+    if model.mass is None:
+        return None
+    rows = []
+    for period, loads in case.loads_by_period.items():
+        for load in loads:
+            row = {"return_period_years": period, "wind_direction": load.name}
+            for state, absorbers in (("bare", _bare_absorbers(case)), ("damped", designed)):
+                if absorbers is None:
+                    continue
+                b = assess_base(model, load.spectrum, case.duration_s, absorbers,
+                                damping_ratio=load.damping_ratio)
+                row[state] = {"names": list(b.names),
+                              "sigma_moment_n_m": [float(v) for v in b.sigma_n_m],
+                              "peak_moment_n_m": [float(v) for v in b.peak_n_m]}
+            rows.append(row)
+    return rows
 
 
 def _size(case: BuildingCase) -> BuildingSizing:
@@ -205,5 +227,20 @@ def building_tables(result: dict) -> dict[str, str]:
     writer.writerow(keys)
     for row in result["damper_axes"]:
         writer.writerow([row[k] if isinstance(row[k], str) else f"{row[k]:.6g}" for k in keys])
-    return {"tables/building_points.csv": points.getvalue(),
-            "tables/damper_axes.csv": axes.getvalue()}
+    tables = {"tables/building_points.csv": points.getvalue(),
+              "tables/damper_axes.csv": axes.getvalue()}
+    if "base_moments" in result:
+        base = io.StringIO()
+        writer = csv.writer(base)
+        writer.writerow(["return_period_years", "wind_direction", "state", "output",
+                         "sigma_n_m", "peak_n_m"])
+        for row in result["base_moments"]:
+            for state in ("bare", "damped"):
+                if state in row:
+                    b = row[state]
+                    for name, sigma, peak in zip(b["names"], b["sigma_moment_n_m"],
+                                                 b["peak_moment_n_m"], strict=True):
+                        writer.writerow([row["return_period_years"], row["wind_direction"],
+                                         state, name, f"{sigma:.6g}", f"{peak:.6g}"])
+        tables["tables/base_moments.csv"] = base.getvalue()
+    return tables

@@ -255,6 +255,83 @@ class DamperPlacement:
         return ("x", "y") if self.axes == "both" else (self.axes,)
 
 
+# Heights at which a mass distribution's integrals are evaluated (trapezoidal
+# rule on a table's rows and this many equal steps; both integrands are
+# piecewise linear or smooth, so 400 steps give ~1e-6).
+MASS_INTEGRATION_STEPS = 400
+
+
+@dataclass(frozen=True)
+class MassDistribution:
+    """The building's mass per height, for base moments.
+
+    Parameters
+    ----------
+    heights_m : tuple of float
+        Strictly increasing heights from 0 to the building height [m].
+    mass_per_length_kg_m : tuple of float
+        Mass per unit height m(z) there [kg/m]; linear in between.
+    inertia_per_length_kg_m : tuple of float or None
+        Mass moment of inertia about the vertical axis per unit height I(z)
+        [kg m^2/m]; needed for the base torque.
+
+    Notes
+    -----
+    The mass centre of every floor is taken at the plan origin (the centre
+    the mode shapes' rotation refers to).
+    """
+
+    heights_m: tuple[float, ...]
+    mass_per_length_kg_m: tuple[float, ...]
+    inertia_per_length_kg_m: tuple[float, ...] | None = None
+
+    def base_coefficients(self, modes: tuple[BuildingMode, ...]) -> tuple[np.ndarray, tuple]:
+        """Base overturning moments and torque per unit modal coordinate.
+
+        Parameters
+        ----------
+        modes : tuple of BuildingMode
+            The modes (their shapes in the unit-largest-component normalisation).
+
+        Returns
+        -------
+        rows : array, shape (k, n)
+            Row 0: moment about the x axis from the y-sway forces,
+            omega_i^2 int m phi_y,i z dz; row 1: moment about the y axis from
+            the x-sway forces, omega_i^2 int m phi_x,i z dz [N m per unit
+            modal coordinate]; row 2 (with the inertia): the torque
+            omega_i^2 int I phi_theta,i dz [N m].
+        names : tuple of str
+            "base moment about x", "base moment about y" (, "base torque").
+
+        Notes
+        -----
+        The elastic forces of mode i are K phi_i q_i = omega_i^2 M phi_i q_i
+        (the mode's defining property: mass-orthogonal, K phi = omega^2 M
+        phi), so the base moment is the sum over the modes of omega_i^2 q_i
+        times the first moment of m phi_i (the modal superposition of
+        equivalent static forces; e.g. Chopra, Dynamics of Structures, the
+        modal base overturning moment, from memory). Forces of the modes
+        left out are not included.
+        """
+        z = np.unique(np.concatenate([self.heights_m, np.linspace(
+            self.heights_m[0], self.heights_m[-1], MASS_INTEGRATION_STEPS + 1)]))
+        mass = np.interp(z, self.heights_m, self.mass_per_length_kg_m)
+        rows, names = [], ["base moment about x", "base moment about y"]
+        for mode in modes:
+            phi = mode.shape.values(z)
+            omega2 = (2.0 * math.pi * mode.frequency_hz) ** 2
+            row = [omega2 * np.trapezoid(mass * phi[:, 1] * z, z),
+                   omega2 * np.trapezoid(mass * phi[:, 0] * z, z)]
+            if self.inertia_per_length_kg_m is not None:
+                inertia = np.interp(z, self.heights_m, self.inertia_per_length_kg_m)
+                row.append(omega2 * np.trapezoid(inertia * phi[:, 2], z))
+            rows.append(row)
+        if self.inertia_per_length_kg_m is not None:
+            names.append("base torque")
+        return np.array(rows).T, tuple(names)
+
+
 @dataclass(frozen=True)
 class BuildingModel:
     """Modes, plan and damper placements: what the n-mode response needs.
@@ -267,11 +344,14 @@ class BuildingModel:
         Plan geometry and evaluation points.
     dampers : tuple of DamperPlacement
         Where the dampers sit (may be empty).
+    mass : MassDistribution or None
+        The mass per height, when the case gives it (base moments need it).
     """
 
     modes: tuple[BuildingMode, ...]
     plan: Plan
     dampers: tuple[DamperPlacement, ...] = ()
+    mass: MassDistribution | None = None
 
     @property
     def frequency_hz(self) -> np.ndarray:

@@ -194,6 +194,61 @@ def assess_building(model: BuildingModel, load: CrossSpectrum, duration_s: float
                               sigma_f, peak_f, plan_stroke, top)
 
 
+@dataclass(frozen=True)
+class BaseResponse:
+    """Base overturning moments (and torque) of a batch of designs.
+
+    Attributes
+    ----------
+    names : tuple of str
+        From :meth:`tmd.building_modes.MassDistribution.base_coefficients`.
+    sigma_n_m, peak_n_m : arrays (..., k)
+        rms and Davenport peak [N m].
+    """
+
+    names: tuple[str, ...]
+    sigma_n_m: np.ndarray
+    peak_n_m: np.ndarray
+
+
+def assess_base(model: BuildingModel, load: CrossSpectrum, duration_s: float,
+                absorbers: Absorbers, *, damping_ratio=None) -> BaseResponse:
+    """rms and peak base moments, for a model with a mass distribution.
+
+    Parameters
+    ----------
+    model : BuildingModel
+        With ``mass`` given.
+    load : CrossSpectrum
+        Modal force cross-spectral matrix [N^2/Hz].
+    duration_s : float
+        Averaging duration T of the peaks [s].
+    absorbers : Absorbers
+        Axes in the model's axis order, or none.
+    damping_ratio : array (n,), optional
+        Modal damping ratios to use instead of the model's [-].
+
+    Returns
+    -------
+    BaseResponse
+        Peaks by Davenport's factor from each moment's own up-crossing rate.
+    """
+    if model.mass is None:
+        raise ValueError("base moments need the case's mass distribution")
+    zeta = model.damping_ratio if damping_ratio is None else np.asarray(damping_ratio, float)
+    coefficients, names = model.mass.base_coefficients(model.modes)
+    n, count = len(model.modes), len(model.axes())
+    rows = np.zeros((coefficients.shape[0], n + 2 * count))
+    rows[:, :n] = coefficients
+    r = modal_response(model.frequency_hz, model.generalised_mass, zeta, absorbers,
+                       model.participation(), load,
+                       OutputRows(rows, np.zeros(len(names), int), names),
+                       pairs=np.zeros((0, 2), int), top_decade=False)
+    sigma = r.sigma
+    peak = davenport_peak_factor(np.nan_to_num(r.upcrossing_hz), duration_s) * sigma
+    return BaseResponse(names, sigma, peak)
+
+
 def _expand(part: OutputMoments, keep: np.ndarray, count: int) -> OutputMoments:
     """Moments of a subset of outputs placed in the full output layout (NaN elsewhere)."""
     batch = part.m0.shape[:-2]

@@ -150,6 +150,22 @@ def test_every_section_reads_right_in_a_browser(browser, _pdf_reader, full_repor
     check_in_browser(browser, full_report[2], tmp_path)
 
 
+@pytest.fixture(scope="module")
+def building_report_files():
+    """report.html of the whole-building demo (Corvid Spire), as ``tmd design`` writes it."""
+    from tmd.building_case import load_building_case
+    from tmd.building_job import building_design_job
+    from tmd.report.building import building_report
+
+    case = Path(__file__).resolve().parents[2] / "cases" / "building" / "corvid_spire.toml"
+    return building_report(building_design_job(load_building_case(case)), dpi=40)
+
+
+def test_building_report_reads_right_in_a_browser(browser, _pdf_reader, building_report_files,
+                                                  tmp_path):
+    check_in_browser(browser, building_report_files, tmp_path)
+
+
 def test_the_check_catches_a_table_wider_than_the_page(browser, _pdf_reader, tmp_path):
     """The overflow check itself can fail: a 3000 px table must be reported."""
     wide = ("<!DOCTYPE html><html><body><table id='wide'><tr><td style='white-space:nowrap'>"

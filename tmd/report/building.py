@@ -45,6 +45,8 @@ def building_report(results: dict, *, dpi: int = 150) -> dict[str, bytes]:
             "direction.", _points_table(results), _figure(results, dpi)]),
         Section("Cautions", [list(results["cautions"]) + list(results.get("warnings", []))]),
     ]
+    if "base_moments" in results:
+        sections.insert(-1, Section("Base moments", [_base_table(results)]))
     html = document(results["case"]["name"], lead, sections)
     return {"report.html": html.encode("utf-8")}
 
@@ -132,6 +134,28 @@ def _points_table(results):
                  note="x, y and resultant columns are with the dampers (bare when none are "
                       "sized). Torsional share: rms of the rotation's part of the resultant "
                       "over the rms resultant.")
+
+
+def _base_table(results):
+    rows = []
+    for k, row in enumerate(results["base_moments"]):
+        for state in ("bare", "damped"):
+            if state not in row:
+                continue
+            b = row[state]
+            for i, name in enumerate(b["names"]):
+                key = f"base_moments.{k}.{state}"
+                rows.append([Cell(row["return_period_years"], f"base_moments.{k}."
+                                  "return_period_years"),
+                             Cell(row["wind_direction"], f"base_moments.{k}.wind_direction"),
+                             Cell(state), Cell(name, f"{key}.names.{i}"),
+                             Cell(b["sigma_moment_n_m"][i], f"{key}.sigma_moment_n_m.{i}"),
+                             Cell(b["peak_moment_n_m"][i], f"{key}.peak_moment_n_m.{i}")])
+    return Table("base-moments", "Base overturning moments and torque", [Cell(h) for h in (
+        "return period [years]", "wind", "state", "output", "rms [N·m]", "peak [N·m]")], rows,
+        note="Fluctuating part (no mean), from the modes' elastic forces: omega_i^2 q_i times "
+             "the first moment of the mass per height in the mode shape, mass centres at the "
+             "plan origin. Modes not given carry nothing here.")
 
 
 def _figure(results, dpi):
