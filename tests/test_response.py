@@ -80,6 +80,27 @@ def test_batch_equals_one_design_at_a_time():
         assert batch.acceleration.m0[i] == pytest.approx(one.acceleration.m0, rel=1e-12)
 
 
+def test_single_design_poles_match_the_state_matrix_eigenvalues():
+    # One design alone takes the scalar Ferrari path (numpy's per-call cost
+    # dominates there), a batch the vectorised one. Reference:
+    # numpy.linalg.eigvals of the 4 x 4 state matrix (LAPACK); the resonance
+    # centres and half-widths agree to eigenvalue rounding (1e-9 relative),
+    # undamped structure and undamped absorber included.
+    from tmd.response import _chunk_resonances, _state_matrix_poles, resonances
+
+    rng = np.random.default_rng(11)
+    for zeta_s, zeta_d in [(0.01, 0.05), (0.0, 0.1), (0.02, 0.0), (0.01, 0.3)]:
+        mu, ratio = rng.uniform(0.005, 0.1), rng.uniform(0.8, 1.2)
+        tmd = single_tmd(FS, MASS, mu, ratio, zeta_d)
+        args = [np.array([v]) for v in (FS, MASS, zeta_s)]
+        centre, width = _chunk_resonances(*args, *(v.reshape(1, 1) for v in (
+            tmd.mass_kg, tmd.frequency_hz, tmd.damping_ratio, tmd.coupling)))
+        ref_centre, ref_width = resonances(_state_matrix_poles(FS, MASS, zeta_s, tmd))
+        np.testing.assert_allclose(centre.ravel(), ref_centre, rtol=1e-9)
+        np.testing.assert_allclose(width.ravel(), ref_width, rtol=1e-9,
+                                   atol=1e-9 * ref_centre.max())
+
+
 def test_two_tmds_match_lyapunov_of_three_dof_system():
     # A bank of two TMDs: three-DOF state-space covariance (derived here from
     # the equations of motion) as the reference.

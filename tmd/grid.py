@@ -178,7 +178,8 @@ def pole_grid(centre_hz, half_width_hz, f_min_hz=0.0, f_max_hz=np.inf, *, breakp
     h = np.asarray(half_width_hz, float)
     if c.shape != h.shape:
         c, h = np.broadcast_arrays(c, h)
-    if c.shape[-1] > 1:
+    # The engine's resonances come in increasing order: sort only when needed.
+    if c.shape[-1] > 1 and not np.all(c[..., 1:] >= c[..., :-1]):
         order = np.argsort(c, axis=-1)
         flat = order.reshape(-1, order.shape[-1])
         rows = np.arange(flat.shape[0])[:, None]
@@ -232,7 +233,30 @@ def _pole_panels(centre, half_width, edges, n, f_out, w_out):
     np.multiply(grow, (0.5 * half_width[..., None] * span) * wt, out=_panels(w_out, *f.shape[-2:]))
 
 
-_STEPS = np.arange(TAIL_PANELS, dtype=float)
+@lru_cache(maxsize=8)
+def _tail_maps(n: int, finite: bool) -> tuple[np.ndarray, np.ndarray]:
+    """Fixed matrices taking the logs of the tail ends to log f and to d(log f) x weight.
+
+    The ends are (far_lo, low_edge, high_edge, far_hi[, f_max]); on the k-th of
+    TAIL_PANELS equal steps from log a to log b the node at t has
+    log f = log a + (k + t)(log b - log a) / TAIL_PANELS, linear in the ends'
+    logs, and its weight is f times the step times the Gauss weight, also
+    linear in them. So every log node of every design is one matrix product:
+    log f = ends @ nodes, weight = f (ends @ weights).
+    """
+    t, wt = _unit_nodes(n)
+    pairs = [(0, 1, k) for k in range(TAIL_PANELS)] + [(2, 3, k) for k in range(TAIL_PANELS)]
+    ends = 4 + finite
+    nodes = np.zeros((ends, len(pairs) + finite, n))
+    weights = np.zeros_like(nodes)
+    for panel, (a, b, k) in enumerate(pairs):
+        share = (k + t) / TAIL_PANELS
+        nodes[a, panel], nodes[b, panel] = 1.0 - share, share
+        weights[a, panel], weights[b, panel] = -wt / TAIL_PANELS, wt / TAIL_PANELS
+    if finite:
+        nodes[3, -1], nodes[4, -1] = 1.0 - t, t
+        weights[3, -1], weights[4, -1] = -wt, wt
+    return nodes.reshape(ends, -1), weights.reshape(ends, -1)
 
 
 def _tail_panels(low_edge, high_edge, f_min, f_max, n, f_out, w_out):
@@ -244,38 +268,35 @@ def _tail_panels(low_edge, high_edge, f_min, f_max, n, f_out, w_out):
     the remainder, by the reciprocal map f = f_0 / t for an unbounded range
     (its nodes never reach t = 0) or one more log panel. Order in the output:
     the lower and upper log panels (and the closing log panel), the linear
-    panel, the reciprocal panel.
+    panel, the reciprocal panel. The log panels of all designs are one
+    matrix product (:func:`_tail_maps`).
     """
     t, wt = _unit_nodes(n)
-    far_lo = np.maximum(low_edge / TAIL_REACH, f_min)
-    far_hi = np.minimum(high_edge * TAIL_REACH, f_max)
     finite = math.isfinite(f_max)
-    ends = [far_lo, low_edge, high_edge, far_hi]
+    ends = np.empty(low_edge.shape + (4 + finite,))
+    far_lo = np.maximum(np.divide(low_edge, TAIL_REACH, out=ends[..., 0]), f_min,
+                        out=ends[..., 0])
+    ends[..., 1] = low_edge
+    ends[..., 2] = high_edge
+    np.minimum(np.multiply(high_edge, TAIL_REACH, out=ends[..., 3]), f_max, out=ends[..., 3])
+    far_hi = ends[..., 3]
     if finite:
-        ends.append(np.full_like(far_hi, f_max))
-    log_ends = np.log(np.stack(ends, axis=-1))
-    # Lower and upper: TAIL_PANELS equal steps in log f each.
-    step = (log_ends[..., 1:4:2] - log_ends[..., 0:3:2]) / TAIL_PANELS
-    start = (log_ends[..., 0:3:2, None] + step[..., None] * _STEPS).reshape(step.shape[:-1]
-                                                                            + (-1,))
-    span = np.repeat(step, TAIL_PANELS, axis=-1)
-    if finite:
-        start = np.concatenate([start, log_ends[..., 3:4]], axis=-1)
-        span = np.concatenate([span, log_ends[..., 4:5] - log_ends[..., 3:4]], axis=-1)
-    panels = start.shape[-1]
-    f_log = _panels(f_out[..., :panels * n], panels, n)
-    np.multiply(span[..., None], t, out=f_log)
-    f_log += start[..., None]
+        ends[..., 4] = f_max
+    node_map, weight_map = _tail_maps(n, finite)
+    logs = (2 * TAIL_PANELS + finite) * n
+    log_ends = np.log(ends)
+    f_log = np.matmul(log_ends, node_map, out=f_out[..., :logs])
     np.exp(f_log, out=f_log)
-    np.multiply(f_log, span[..., None] * wt, out=_panels(w_out[..., :panels * n], panels, n))
+    w_log = np.matmul(log_ends, weight_map, out=w_out[..., :logs])
+    w_log *= f_log
     # Linear panel [f_min, far_lo].
-    linear = slice(panels * n, (panels + 1) * n)
+    linear = slice(logs, logs + n)
     width = (far_lo - f_min)[..., None]
     np.multiply(width, t, out=f_out[..., linear])
     f_out[..., linear] += f_min
     np.multiply(width, wt, out=w_out[..., linear])
     if not finite:
-        last = slice((panels + 1) * n, (panels + 2) * n)
+        last = slice(logs + n, logs + 2 * n)
         np.divide(far_hi[..., None], t, out=f_out[..., last])
         np.multiply(f_out[..., last], wt / t, out=w_out[..., last])
 

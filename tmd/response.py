@@ -21,6 +21,7 @@ batch of designs is one vectorised call.
 
 from __future__ import annotations
 
+import cmath
 import math
 from dataclasses import dataclass
 
@@ -34,7 +35,7 @@ TWO_PI = 2.0 * np.pi
 # Below this the top-decade share of a response moment is not worth a warning.
 TOP_DECADE_WARNING = 0.01
 # Designs per chunk of the kernel: temporaries of CHUNK_DESIGNS x nodes stay in cache.
-CHUNK_DESIGNS = 256
+CHUNK_DESIGNS = 128
 # Below this many designs the quartic's roots come from a 4 x 4 eigenvalue
 # problem (fixed cost ~13 us), above it from the radicals (~0.6 us per design).
 SMALL_CHUNK = 32
@@ -275,6 +276,7 @@ _EYE3 = np.eye(3)
 
 
 _CUBE_ROOTS_OF_UNITY = np.exp(2j * np.pi * np.arange(3) / 3)
+_CUBE_ROOTS_OF_UNITY_LIST = [complex(w) for w in _CUBE_ROOTS_OF_UNITY]
 
 
 def _state_matrix_poles(frequency_hz, modal_mass_kg, damping_ratio, absorbers: Absorbers):
@@ -468,9 +470,9 @@ def spectral_response(frequency_hz, modal_mass_kg, damping_ratio, absorbers: Abs
     def moments(name):
         if name not in wanted:
             return None
-        value = sums[name]
         shape = batch + ((n,) if name == "stroke" else ())
-        return Moments(*(value[:, k].reshape(shape) for k in range(3)))
+        # (total, 3[, n]) -> three arrays of the batch's shape, by one transposed view.
+        return Moments(*sums[name].swapaxes(0, 1).reshape((3,) + shape))
 
     acc = moments("acceleration")
     shares = None
@@ -539,6 +541,11 @@ def _chunk_resonances(structure_hz, modal_mass_kg, damping_ratio, absorber_mass_
         width = fs * (zeta - np.sqrt(np.maximum(zeta * zeta - 1.0, 0.0)))
         scale = np.maximum(centre, width)
         return np.maximum(centre, 1e-9 * scale), np.maximum(width, 1e-12 * scale)
+    if n == 1 and structure_hz.size == 1:
+        return _single_design_resonances(
+            float(structure_hz[0]), float(modal_mass_kg[0]), float(damping_ratio[0]),
+            float(absorber_mass_kg[0, 0]), float(absorber_hz[0, 0]),
+            float(absorber_damping_ratio[0, 0]), float(coupling[0, 0]))
     if n == 1:
         poles = (TWO_PI * structure_hz[:, None]) * _one_absorber_roots(
             structure_hz[:, None], modal_mass_kg[:, None], damping_ratio[:, None],
@@ -547,6 +554,74 @@ def _chunk_resonances(structure_hz, modal_mass_kg, damping_ratio, absorber_mass_
         poles = _state_matrix_poles(structure_hz, modal_mass_kg, damping_ratio, Absorbers(
             absorber_mass_kg, absorber_hz, absorber_damping_ratio, coupling))
     return resonances(poles)
+
+
+def _single_design_resonances(structure_hz, modal_mass_kg, damping_ratio, mass_kg,
+                              frequency_hz, absorber_damping_ratio, coupling):
+    """:func:`_chunk_resonances` of one design with one absorber, in scalar arithmetic.
+
+    The same quartic as :func:`_one_absorber_roots`, solved by the same
+    Ferrari formulas and Newton polish (:func:`_scalar_quartic_roots`) on
+    Python floats: for a single design numpy's per-call overhead, not the
+    arithmetic, is the cost (an optimiser's line search calls the engine one
+    design at a time). Returns arrays (1, 2) like :func:`resonances`.
+    """
+    mu = mass_kg / modal_mass_kg
+    rho = frequency_hz / structure_hz
+    total = 1.0 + mu
+    lead = total - mu * coupling * coupling
+    b1 = 2.0 * absorber_damping_ratio * rho
+    b0 = rho * rho
+    zs2 = 2.0 * damping_ratio
+    roots = _scalar_quartic_roots((total * b1 + zs2) / lead, (total * b0 + zs2 * b1 + 1.0) / lead,
+                                  (zs2 * b0 + b1) / lead, b0 / lead)
+    if roots is None:  # the radicals failed: the vectorised path and its fallback
+        poles = (TWO_PI * structure_hz) * _one_absorber_roots(*(
+            np.array([[v]]) for v in (structure_hz, modal_mass_kg, damping_ratio, mass_kg,
+                                      frequency_hz, absorber_damping_ratio, coupling)))
+        return resonances(poles)
+    # The two of largest imaginary part, one of each conjugate pair (as resonances()).
+    top = sorted(roots, key=lambda x: x.imag)[2:]
+    scale_hz = structure_hz
+    centre = [max(x.imag, 0.0) * scale_hz for x in top]
+    width = [abs(x.real) * scale_hz for x in top]
+    scale = max(*centre, *width)
+    return (np.array([[max(v, 1e-9 * scale) for v in centre]]),
+            np.array([[max(v, 1e-12 * scale) for v in width]]))
+
+
+def _scalar_quartic_roots(a3, a2, a1, a0):
+    """:func:`_quartic_roots` for one quartic on Python floats; None where the radicals fail."""
+    shift = 0.25 * a3
+    p = a2 - 6.0 * shift * shift
+    q = a1 - 2.0 * a2 * shift + 8.0 * shift**3
+    r = a0 - a1 * shift + a2 * shift * shift - 3.0 * shift**4
+    b = 0.25 * p * p - r
+    big_p = b - p * p / 3.0
+    big_q = p * (2.0 * p * p - 9.0 * b) / 27.0 - 0.125 * q * q
+    try:
+        root = cmath.sqrt(0.25 * big_q * big_q + big_p**3 / 27.0)
+        root *= math.copysign(1.0, -(big_q * root.real))
+        base = (root - 0.5 * big_q) ** (1.0 / 3.0)
+        m = max((u - big_p / (3.0 * u) - p / 3.0 for u in
+                 (base * w for w in _CUBE_ROOTS_OF_UNITY_LIST)), key=abs)
+        s = cmath.sqrt(2.0 * m)
+        tilt = 2.0 * q / s
+        d1 = cmath.sqrt(-2.0 * (p + m) - tilt)
+        d2 = cmath.sqrt(-2.0 * (p + m) + tilt)
+    except (ZeroDivisionError, OverflowError, ValueError):
+        return None
+    roots = []
+    for x in (0.5 * (s + d1), 0.5 * (s - d1), 0.5 * (d2 - s), -0.5 * (s + d2)):
+        x -= shift
+        for _ in range(2):
+            value = (((x + a3) * x + a2) * x + a1) * x + a0
+            slope = ((4.0 * x + 3.0 * a3) * x + 2.0 * a2) * x + a1
+            x -= value * slope.conjugate() / (slope.real**2 + slope.imag**2 + 1e-300)
+        if not cmath.isfinite(x):
+            return None
+        roots.append(x)
+    return roots
 
 
 def _power_kernel(frequency_hz, structure_hz, modal_mass_kg, damping_ratio, absorber_mass_kg,

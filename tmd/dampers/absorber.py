@@ -60,10 +60,11 @@ class Absorbers:
     coupling: np.ndarray
 
     def __post_init__(self):
-        arrays = np.broadcast_arrays(
-            *(np.asarray(a, dtype=float) for a in
-              (self.mass_kg, self.frequency_hz, self.damping_ratio, self.coupling))
-        )
+        arrays = [np.asarray(a, dtype=float) for a in
+                  (self.mass_kg, self.frequency_hz, self.damping_ratio, self.coupling)]
+        # Broadcast only when needed: this runs on every engine call of a search.
+        if any(a.shape != arrays[0].shape for a in arrays[1:]):
+            arrays = np.broadcast_arrays(*arrays)
         if arrays[0].ndim == 0:
             raise ValueError("absorber arrays need a last axis that counts the absorbers")
         for name, value in zip(("mass_kg", "frequency_hz", "damping_ratio", "coupling"),
