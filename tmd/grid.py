@@ -240,23 +240,26 @@ def _tail_maps(n: int, finite: bool) -> tuple[np.ndarray, np.ndarray]:
     The ends are (far_lo, low_edge, high_edge, far_hi[, f_max]); on the k-th of
     TAIL_PANELS equal steps from log a to log b the node at t has
     log f = log a + (k + t)(log b - log a) / TAIL_PANELS, linear in the ends'
-    logs, and its weight is f times the step times the Gauss weight, also
-    linear in them. So every log node of every design is one matrix product:
-    log f = ends @ nodes, weight = f (ends @ weights).
+    logs, and its weight is f times the step times the Gauss weight, linear
+    in the differences of consecutive ends' logs. So every log node of every
+    design is one matrix product: log f = ends @ nodes and
+    weight = f (diff(ends) @ weights), the weights' matrix and the
+    differences both >= 0, so that no weight comes out negative by rounding
+    (a zero-width panel has weight exactly 0; a convex caller relies on it).
     """
     t, wt = _unit_nodes(n)
     pairs = [(0, 1, k) for k in range(TAIL_PANELS)] + [(2, 3, k) for k in range(TAIL_PANELS)]
     ends = 4 + finite
     nodes = np.zeros((ends, len(pairs) + finite, n))
-    weights = np.zeros_like(nodes)
+    weights = np.zeros((ends - 1,) + nodes.shape[1:])
     for panel, (a, b, k) in enumerate(pairs):
         share = (k + t) / TAIL_PANELS
         nodes[a, panel], nodes[b, panel] = 1.0 - share, share
-        weights[a, panel], weights[b, panel] = -wt / TAIL_PANELS, wt / TAIL_PANELS
+        weights[a, panel] = wt / TAIL_PANELS  # row a: log(end b) - log(end a)
     if finite:
         nodes[3, -1], nodes[4, -1] = 1.0 - t, t
-        weights[3, -1], weights[4, -1] = -wt, wt
-    return nodes.reshape(ends, -1), weights.reshape(ends, -1)
+        weights[3, -1] = wt
+    return nodes.reshape(ends, -1), weights.reshape(ends - 1, -1)
 
 
 def _tail_panels(low_edge, high_edge, f_min, f_max, n, f_out, w_out):
@@ -287,7 +290,7 @@ def _tail_panels(low_edge, high_edge, f_min, f_max, n, f_out, w_out):
     log_ends = np.log(ends)
     f_log = np.matmul(log_ends, node_map, out=f_out[..., :logs])
     np.exp(f_log, out=f_log)
-    w_log = np.matmul(log_ends, weight_map, out=w_out[..., :logs])
+    w_log = np.matmul(np.diff(log_ends, axis=-1), weight_map, out=w_out[..., :logs])
     w_log *= f_log
     # Linear panel [f_min, far_lo].
     linear = slice(logs, logs + n)
