@@ -131,3 +131,17 @@ def test_help_and_bad_input_do_not_load_the_numerical_stack():
     done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
                           check=True)
     assert done.stdout.strip().splitlines()[-1] == "[]"
+
+
+def test_the_jobs_do_not_load_scipy_signal_until_identification_runs():
+    # Issue "Speed": scipy.signal costs about 0.4 s of CPU to import
+    # (measured on 2 shared cores; bench/bench_jobs.py times the commands)
+    # and only tmd.identify's record analysis needs it, so importing the
+    # jobs (every design, compare and wind run) must not pull it in.
+    import subprocess
+    import sys
+
+    code = "import sys\nimport tmd.jobs\nprint('scipy.signal' in sys.modules)"
+    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                          check=True)
+    assert done.stdout.strip() == "False"

@@ -45,7 +45,7 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
-from scipy import optimize, signal
+from scipy import optimize
 
 from tmd.ambient_record import (  # noqa: F401  (re-exported: the record is identify's input)
     AccelerationRecord,
@@ -332,6 +332,8 @@ def random_decrement_signature(record: AccelerationRecord, frequency_hz_guess: f
     the sign reversed, -sigma_y; the signature is the mean of the segments
     that follow, found for every lag at once by FFT correlation.
     """
+    from scipy import signal  # deferred: 0.4 s to import, and only identification needs it
+
     dt = record.time_step_s
     f0 = frequency_hz_guess
     nyquist = 0.5 / dt
@@ -388,6 +390,8 @@ def random_decrement(record: AccelerationRecord, frequency_hz_guess: float) -> M
     ----------
     Cole (1973); Asmussen (1997) (module references).
     """
+    from scipy import signal  # deferred: 0.4 s to import, and only identification needs it
+
     lag, d, _ = random_decrement_signature(record, frequency_hz_guess)
     dt = record.time_step_s
     envelope = np.abs(signal.hilbert(d))
@@ -443,6 +447,8 @@ def welch_peak_hz(record: AccelerationRecord, min_frequency_hz: float | None = N
     Welch's method (``scipy.signal.welch``, Hann window, 50% overlap) with
     segments of about an eighth of the record.
     """
+    from scipy import signal  # deferred: 0.4 s to import, and only identification needs it
+
     a, dt, T = record.acceleration_m_s2, record.time_step_s, record.duration_s
     lo = 20.0 / T if min_frequency_hz is None else min_frequency_hz
     hi = 0.25 / dt if max_frequency_hz is None else max_frequency_hz
