@@ -248,3 +248,14 @@ def test_saltmarsh_spire_demo_uses_the_profile_table_and_the_across_wind_model()
     assert not any("outside the across-wind model's range" in n or "exceeds" in n
                    for n in case.across_notes)
     assert any(acrosswind.NOT_VERIFIED in n for n in case.across_notes)
+
+
+def test_across_wind_loads_say_where_their_top_decade_warning_comes_from(design_results):
+    # The model's f^-3 tail adds the same m2 per decade (closed form checked in
+    # tests/wind/test_acrosswind.py): an across-wind case says so beside the engine's
+    # top-decade warning; an along-wind case (strip model, f^-11/3) does not.
+    across = design_results(CASES / "saltmarsh_spire.toml")
+    along = wind_job(read_case(CASES / "kestrel_point.toml"))
+    assert acrosswind.TAIL_NOTE in across["warnings"]
+    assert any("top decade" in w for w in across["warnings"])
+    assert acrosswind.TAIL_NOTE not in along["warnings"]

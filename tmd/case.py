@@ -57,7 +57,7 @@ from tmd.rules import (
 )
 from tmd.spectra import ForceSpectrum, SpectrumFileError, read_force_psd_csv, read_text_file
 from tmd.structure import Mode
-from tmd.wind import AIR_DENSITY_KG_M3, SPECTRUM_MODELS, TERRAIN_CATEGORIES, Site
+from tmd.wind import AIR_DENSITY_KG_M3, SPECTRUM_MODELS, TERRAIN_CATEGORIES, Site, acrosswind
 from tmd.wind.boundary_layer import PROFILE_MODELS
 from tmd.wind_loads import WindLoad, compute_wind_loads
 from tmd.wind_setup import (
@@ -398,11 +398,12 @@ def _wind_case(path: Path, table: CaseTable, mode: Mode, common: dict) -> Case:
         building, mode.frequency_hz, periods, [x.top_mean_speed_m_s for x in loads],
         lambda t: float(site.mean_speed(building.height_m, t)))
     design = next(x for x in loads if x.return_period_years == table.target.return_period_years)
+    tail = (acrosswind.TAIL_NOTE,) if w.direction_of_response == "across" else ()
     return Case(spectrum=design.spectrum, input_files=(path.resolve(),), site=site,
                 building=building, wind_loads=loads,
                 target_return_period_years=table.target.return_period_years,
                 wind_settings=w.model_dump(), direction_of_response=w.direction_of_response,
-                across_wind=block, across_notes=(*site_notes, *across_notes), **common)
+                across_wind=block, across_notes=(*site_notes, *across_notes, *tail), **common)
 
 
 def _normalised_case(path: Path, table: CaseTable, mode: Mode, common: dict) -> Case:
