@@ -108,6 +108,13 @@ def assert_consistent_results(results: dict) -> None:
         if target is not None:
             _assert_verdict(row, "peak_acceleration_m_s2", "meets_target", target, where)
         _assert_at_least(row, "peak_acceleration_band_max_m_s2", "peak_acceleration_m_s2", where)
+        freeboard = (row.get("dimensions") or {}).get("freeboard_m")
+        for entry in row.get("by_return_period") or []:
+            rise = entry.get("peak_excursion_m", entry.get("peak_free_surface_elevation_m"))
+            if "within_freeboard" in entry:
+                assert entry["within_freeboard"] == (rise <= freeboard), (
+                    f"{where} by_return_period: within_freeboard = {entry['within_freeboard']} "
+                    f"with rise {rise!r} and freeboard {freeboard!r}")
     _assert_probabilistic(results.get("probabilistic"))
 
 

@@ -127,6 +127,9 @@ class LiquidColumnOptionsTable(_OptionTable):
     max_excursion_ratio: _number(gt=0, le=1.0) = ColumnSettings.max_excursion_ratio
     # Water 1000; heavy brines and slurries up to a few thousand.
     density_kg_m3: _number(ge=500, le=15_000) = ColumnSettings.density_kg_m3
+    # Height of the legs above the still liquid; left out, the legs are sized for the
+    # longest reported return period's peak excursion.
+    freeboard_m: _number(gt=0, le=20.0) | None = None
 
     def settings(self) -> ColumnSettings:
         """:class:`tmd.dampers.liquid_column.ColumnSettings`."""

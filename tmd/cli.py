@@ -281,6 +281,8 @@ def compare(case: CaseArg,
     c, target = _case_and_output(case, out)
     result = _job("compare_job")(c)
     out_console.print(terminal.options_table(result))
+    if (freeboard := terminal.freeboard_table(result)) is not None:
+        out_console.print(freeboard)
     print_notes(result)
     _write(c, result, target)
 

@@ -45,6 +45,12 @@ from tmd.registry import OPTION_NAMES
 from tmd.robust import band_maximum, peak_acceleration_band_max, structure_damping_ratios
 from tmd.rules import MAX_OPTION_NAMES, Band, Positive, Ratio, require, unique_list
 from tmd.sizing.bank import BankSettings, size_tmd_bank
+from tmd.sizing.freeboard import (
+    FREEBOARD_NOTE,
+    check_freeboard,
+    column_by_return_period,
+    tank_by_return_period,
+)
 from tmd.sizing.liquid_column import size_liquid_column, velocity_proportional_fixed_point
 from tmd.sizing.pendulum import pendulum_design
 from tmd.sizing.sloshing import size_sloshing_tanks
@@ -75,6 +81,7 @@ class _Job:
     settings: OptionSettings
     _tmd: Sizing | None = None
     stroke_loads: tuple[LoadedMode, ...] = ()
+    return_period_loads: tuple[tuple[float, LoadedMode], ...] = ()
 
     def tmd_sizing(self) -> Sizing:
         if self._tmd is None:
@@ -91,7 +98,9 @@ def compare_options(loaded: LoadedMode, target_peak_m_s2: float, *, enabled=None
                     frequency_band: float = FREQUENCY_BAND,
                     settings: OptionSettings | None = None,
                     tmd_sizing: Sizing | None = None,
-                    stroke_loads: tuple[LoadedMode, ...] = ()) -> list[dict]:
+                    stroke_loads: tuple[LoadedMode, ...] = (),
+                    return_period_loads: tuple[tuple[float, LoadedMode], ...] = ()
+                    ) -> list[dict]:
     """Size every enabled passive option and describe each in one dict.
 
     Parameters
@@ -119,6 +128,10 @@ def compare_options(loaded: LoadedMode, target_peak_m_s2: float, *, enabled=None
         Further loads under which the bank holds ``max_stroke_m`` too (the
         wind of ``[damper] stroke_return_period_years``); ``tmd_sizing``
         carries the TMD's own.
+    return_period_loads : tuple of (return period [years], LoadedMode)
+        Every reported load of a wind case, in increasing return period: the
+        liquid options are checked against their freeboard at each
+        (:mod:`tmd.sizing.freeboard`; rows gain ``by_return_period``).
 
     Returns
     -------
@@ -149,7 +162,8 @@ def compare_options(loaded: LoadedMode, target_peak_m_s2: float, *, enabled=None
         require("max_stroke_m", max_stroke_m, Positive)
     require("frequency_band", frequency_band, Band)
     job = _Job(loaded, target_peak_m_s2, max_mass_ratio, max_stroke_m, frequency_band,
-               settings or OptionSettings(), tmd_sizing, tuple(stroke_loads))
+               settings or OptionSettings(), tmd_sizing, tuple(stroke_loads),
+               tuple(return_period_loads))
     rows = [{"option": name} | OPTIONS[name](job) for name in names]
     for row in rows:
         # Every verdict is the one comparison on the number the row reports.
@@ -227,14 +241,17 @@ def _column_row(job: _Job) -> dict:
             job.loaded, d.liquid_mass_kg, d.frequency_hz, d.length_ratio, d.damping_gain_s_per_m,
             frequency_scale=s)[1].peak_acceleration_m_s2
 
+    freeboard, basis, by_period = _column_freeboard(job, d)
     return _measured(job, a, d.mass_ratio, peaks) | {
         "peak_stroke_m": d.peak_excursion_m, "meets_target": d.meets_target,
         "message": d.message,
         "dimensions": {"liquid_length_m": d.liquid_length_m,
                        "horizontal_length_m": d.horizontal_length_m,
                        "vertical_liquid_height_m": d.vertical_liquid_height_m,
-                       "vertical_leg_height_m": d.vertical_leg_height_m,
+                       "vertical_leg_height_m": d.vertical_liquid_height_m + freeboard,
+                       "freeboard_m": freeboard,
                        "cross_section_area_m2": d.cross_section_area_m2},
+        "freeboard_basis": basis, **by_period,
         "participating_mass_kg": d.participating_mass_kg, "rigid_mass_kg": d.rigid_mass_kg,
         "frequency_hz": d.frequency_hz, "equivalent_damping_ratio": d.equivalent_damping_ratio,
         "length_ratio": d.length_ratio, "columns": d.columns,
@@ -258,7 +275,15 @@ def _tank_row(job: _Job) -> dict:
             "tank_width_m": d.tank_width_m}
     if d.freeboard_m is not None:
         dims["freeboard_m"] = d.freeboard_m
-    return _measured(job, a, d.mass_ratio, peaks) | {
+    by_period = {}
+    if job.return_period_loads:
+        rows = tank_by_return_period(job.return_period_loads, d, job.settings.tank.depth_ratio)
+        if d.freeboard_m is not None:
+            rows = check_freeboard("sloshing-tank", rows, "peak_free_surface_elevation_m",
+                                   d.freeboard_m, "give a larger [options.sloshing_tank] "
+                                   "freeboard_m, or a higher tank")
+        by_period = {"by_return_period": rows, "freeboard_note": FREEBOARD_NOTE}
+    return _measured(job, a, d.mass_ratio, peaks) | by_period | {
         "peak_stroke_m": d.peak_sloshing_displacement_m, "meets_target": d.meets_target,
         "message": d.message, "dimensions": dims,
         "participating_mass_kg": d.participating_mass_kg, "rigid_mass_kg": d.rigid_mass_kg,
@@ -267,6 +292,26 @@ def _tank_row(job: _Job) -> dict:
         "screen_loss_coefficient": d.screen_loss_coefficient,
         "intrinsic_damping_ratio": d.intrinsic_damping_ratio,
         "peak_free_surface_elevation_m": d.peak_free_surface_elevation_m}
+
+
+def _column_freeboard(job: _Job, d) -> tuple[float, str, dict]:
+    """The column's freeboard, how it was chosen, and its check at every return period."""
+    given = job.settings.column.freeboard_m
+    if not job.return_period_loads:
+        if given is not None:
+            return given, "given ([options.liquid_column] freeboard_m)", {}
+        return d.peak_excursion_m, "the peak excursion at the design load", {}
+    rows = column_by_return_period(job.return_period_loads, d)
+    if given is None:
+        freeboard = max([d.peak_excursion_m] + [r["peak_excursion_m"] for r in rows])
+        basis = ("the peak excursion at the longest reported return period (no "
+                 "[options.liquid_column] freeboard_m given)")
+    else:
+        freeboard, basis = given, "given ([options.liquid_column] freeboard_m)"
+    rows = check_freeboard("liquid-column", rows, "peak_excursion_m", freeboard,
+                           "give a larger [options.liquid_column] freeboard_m, or leave it "
+                           "out to size the legs for the longest return period")
+    return freeboard, basis, {"by_return_period": rows, "freeboard_note": FREEBOARD_NOTE}
 
 
 def _viscous_row(job: _Job) -> dict:

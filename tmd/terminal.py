@@ -91,6 +91,45 @@ def options_table(result: dict) -> Table:
     return table
 
 
+# The rise each liquid option compares with its freeboard (tmd.sizing.freeboard).
+LIQUID_RISE_KEYS = {"liquid-column": "peak_excursion_m",
+                    "sloshing-tank": "peak_free_surface_elevation_m"}
+
+
+def freeboard_table(result: dict) -> Table | None:
+    """Return the liquid options' rise against their freeboard per return period, or None.
+
+    Parameters
+    ----------
+    result : dict
+        results.json of ``tmd compare``; rows with ``by_return_period``.
+
+    Returns
+    -------
+    rich.table.Table or None
+        None when no option carries per-return-period rows.
+    """
+    rows = [r for r in result["options"] if r.get("by_return_period")]
+    if not rows:
+        return None
+    table = Table(title="liquid dampers: peak rise against the freeboard",
+                  box=box.SIMPLE_HEAD, collapse_padding=True, pad_edge=False)
+    for header in ("option", "return period", "peak rise [m]", "freeboard [m]", "freeboard"):
+        table.add_column(header, justify="left" if header == "option" else "right")
+    for row in rows:
+        freeboard = row["dimensions"].get("freeboard_m")
+        for entry in row["by_return_period"]:
+            ok = entry.get("within_freeboard")
+            table.add_row(escape(str(row["option"])), f"{entry['return_period_years']:g} y",
+                          f"{entry[LIQUID_RISE_KEYS[row['option']]]:.3f}",
+                          "-" if freeboard is None else f"{freeboard:.3f}",
+                          "-" if ok is None else "within" if ok else "[red]OVERFLOWS[/]")
+    table.caption = ("liquid column: excursion along the column (rise in a leg); sloshing tank: "
+                     "wave height at the wall; the device as specified, its damping re-solved "
+                     "at each wind (spectral estimate)")
+    return table
+
+
 def sweep_table(result: dict) -> Table:
     """Return the structure-frequency sweep of ``tmd sweep``, every column with its unit.
 

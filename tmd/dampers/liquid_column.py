@@ -57,12 +57,18 @@ class ColumnSettings:
         liquid would leave the leg and the model no longer holds.
     density_kg_m3 : float
         Liquid density [kg/m^3].
+    freeboard_m : float or None
+        Height of the vertical legs above the still liquid [m]; the peak
+        excursion at the design load is held below it as well. None: the
+        legs are made as high as the peak excursion at the longest reported
+        return period needs (at the design load's when there is only one).
     """
 
     length_ratio: float = 0.7
     columns: int = 1
     max_excursion_ratio: float = 0.8
     density_kg_m3: float = WATER_DENSITY
+    freeboard_m: float | None = None
 
 
 def column_length_m(frequency_hz, gravity_m_s2: float = STANDARD_GRAVITY):

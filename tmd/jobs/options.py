@@ -75,6 +75,8 @@ def compare_job(case: Case) -> dict:
                 max_mass_ratio=case.damper.max_mass_ratio,
                 max_stroke_m=case.damper.max_stroke_m, frequency_band=band,
                 tmd_sizing=size_damper(case), settings=option_settings_of(case),
-                stroke_loads=stroke_cases_of(case))
+                stroke_loads=stroke_cases_of(case),
+                return_period_loads=tuple((w.return_period_years, loaded_mode_of(case, w))
+                                          for w in case.wind_loads))
 
     return with_notes(build, case)

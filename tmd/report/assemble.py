@@ -465,7 +465,8 @@ class _Report:
         options = self.results["options"]
         blocks = [self._table(across_table(
             "options", "Damper options compared (one column per option)", options, "options",
-            column_key="option", skip=("dampers", "message"))),
+            column_key="option",
+            skip=("dampers", "message", "by_return_period", "freeboard_note", "freeboard_basis"))),
             self._table(record_table("options_outcome", "What each option's sizing found",
                                      options, "options", columns=("option", "message")))]
         for i, option in enumerate(options):
@@ -473,6 +474,16 @@ class _Report:
                 blocks.append(self._table(record_table(
                     f"options_{i}_dampers", f"Dampers of the option '{option['option']}'",
                     option["dampers"], f"options.{i}.dampers")))
+            if option.get("by_return_period"):
+                blocks.append(self._table(by_period_table(
+                    f"options_{i}_by_return_period",
+                    f"Option '{option['option']}' at every return period"
+                    + (f", against its freeboard {option['dimensions']['freeboard_m']:.3f} m"
+                       if "freeboard_m" in option["dimensions"] else ""),
+                    option["by_return_period"], f"options.{i}.by_return_period",
+                    note=" ".join(filter(None, (option.get("freeboard_note"),
+                                                "Freeboard: " + option["freeboard_basis"] + "."
+                                                if option.get("freeboard_basis") else ""))))))
         self._step("options")
         band = [o.get("peak_acceleration_band_max_m_s2") for o in options]
         ax = plots.plot_option_comparison(

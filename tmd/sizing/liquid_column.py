@@ -246,8 +246,10 @@ def size_liquid_column(loaded: LoadedMode, target_peak_m_s2: float, *, max_mass_
     -----
     L = 2 g / omega_l^2, B = alpha L, still height in each leg
     h = (1 - alpha) L / 2, cross-section per column A = m_l / (n rho L);
-    peak excursion y_peak <= max_excursion_ratio * h; the vertical legs need
-    at least h + y_peak of height. The head-loss coefficient is
+    peak excursion y_peak <= max_excursion_ratio * h (and <= the freeboard
+    where one is given); the vertical legs are h + freeboard high, the
+    freeboard being the given one or, here, y_peak (see
+    :mod:`tmd.sizing.freeboard` for the longest return period's). The head-loss coefficient is
     xi = zeta_eq sqrt(2 pi) L omega_l / sigma_y' with zeta_eq the optimal
     equivalent damping (Gao, Kwok & Samali 1997 for the linearisation).
     """
@@ -259,6 +261,8 @@ def size_liquid_column(loaded: LoadedMode, target_peak_m_s2: float, *, max_mass_
     sizing = None
     for _ in range(iterations):
         limit = settings.max_excursion_ratio * leg_height_m(column_length_m(frequency), alpha)
+        if settings.freeboard_m is not None:
+            limit = min(limit, settings.freeboard_m)
         sizing = least_coupled_mass(loaded, target_peak_m_s2, alpha, max_mass_ratio=max_mass_ratio,
                                     max_coordinate_m=limit)
         if sizing.governed_by == "bare" or abs(sizing.frequency_hz / frequency - 1) < 1e-6:
@@ -293,7 +297,8 @@ def _column_design(loaded, sizing: CoupledSizing, settings: ColumnSettings) -> C
         cross_section_area_m2=float(mass) / (settings.columns * settings.density_kg_m3 * length),
         columns=settings.columns, head_loss_coefficient=xi,
         equivalent_damping_ratio=sizing.damping_ratio, sigma_excursion_m=float(a.sigma_stroke_m[0]),
-        peak_excursion_m=peak, vertical_leg_height_m=h + peak,
+        peak_excursion_m=peak,
+        vertical_leg_height_m=h + (peak if settings.freeboard_m is None else settings.freeboard_m),
         meets_target=sizing.meets_target, governed_by=sizing.governed_by,
         message=sizing.message)
 
