@@ -37,10 +37,11 @@ GOVERNED_BY = frozenset({"target", "stroke", "mass", "bare", "fixed mass ratio",
                          "minimum"})
 
 # SI unit suffixes of the project's keys (README "Case files" and
-# "results.json"); `_years` is the documented unit of return periods.
+# "results.json"); `_years` is the documented unit of return periods, `_deg`
+# of wind directions and bearings (degrees clockwise from north).
 _UNIT = re.compile(
     r"_(hz|kg|m|s|n|rad|pa|m_s|m_s2|m2|m3|kg_m|kg_m2|kg_m3|n_per_m|n_s_per_m|s_per_m"
-    r"|n2_per_hz|m2_s2_per_hz|m2_per_hz|years|j)$")
+    r"|n2_per_hz|m2_s2_per_hz|m2_per_hz|years|j|deg)$")
 # Last words of dimensionless quantities (ratios, factors, counts, ...).
 _DIMENSIONLESS_WORDS = frozenset({
     "ratio", "factor", "factors", "coefficient", "count", "steps", "stages", "columns",
@@ -52,6 +53,9 @@ _DIMENSIONLESS_WORDS = frozenset({
 # of like quantities written "x_per_modal_y".
 _DIMENSIONLESS_KEYS = frozenset({
     "deformation_per_modal_displacement",
+    # Whole-building cases (issue 9): a mode's sway components in x and y (unit
+    # largest component) and EN 1991-1-4's directional factor c_dir.
+    "shape_x", "shape_y", "c_dir",
     # EN 1991-1-4 Annex B quantities of the wind job (B.3, B.7, B.8, F.15).
     "size_reduction_height", "size_reduction_breadth", "log_decrement_total",
     "peak_factor_acceleration",
@@ -126,8 +130,9 @@ def _assert_sizing(results, sizing, design, target):
             f"sizing.meets_target = {sizing['meets_target']} but design.meets_target = "
             f"{design['meets_target']} (peak {design['peak_acceleration_m_s2']!r}, "
             f"target {target!r})")
-    elif target is not None:
-        # No damper: the verdict is the bare building's.
+    elif target is not None and results.get("kind") != "building":
+        # No damper: the verdict is the bare building's. (A whole-building result has no
+        # design block; its verdict is over every point, direction and load.)
         assert governed == "bare", f"no design block, but sizing.governed_by = {governed!r}"
         bare = results["bare"]["peak_acceleration_m_s2"]
         assert sizing["meets_target"] == (bare <= target), (

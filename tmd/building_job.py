@@ -176,7 +176,8 @@ def _axis_blocks(case: BuildingCase, tuning, damped: list[BuildingAssessment]) -
             "sigma_stroke_m": max(float(d.sigma_stroke_m[a]) for d in damped),
             "peak_stroke_m": max(float(d.peak_stroke_m[a]) for d in damped),
             "peak_force_n": max(float(d.peak_force_n[a]) for d in damped),
-            "effective_mass_ratio": {m.name: float(mu[a, i]) for i, m in enumerate(model.modes)},
+            # In the order of building.modes (a list: mode names are not unit-suffixed keys).
+            "effective_mass_ratio": [float(mu[a, i]) for i in range(len(model.modes))],
         })
     return rows
 
