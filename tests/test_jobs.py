@@ -130,3 +130,32 @@ def test_a_start_that_meets_is_a_design_not_bad_input():
     r = _design(0.2125)
     assert r["sizing"]["governed_by"] == "minimum" and r["design"]["mass_ratio"] == 1e-4
     assert r["design"]["meets_target"] is True
+
+
+def test_robust_row_label_follows_its_own_band_verdict(monkeypatch):
+    # Issue 11, item 3: the terminal titled the robust row "meets target across band"
+    # when it did not. The label is read from band_design.meets_target_across_band,
+    # itself the one comparison band max <= target (tests/consistency.py).
+    import io
+
+    from rich.console import Console
+
+    from tmd import terminal
+
+    r = _design(0.213, max_mass_ratio=0.0005)  # the band cannot be met at this mass
+    robust = r["band_design"]
+    assert robust["meets_target_across_band"] is (
+        robust["peak_acceleration_band_max_m_s2"] <= 0.213) is False
+
+    def printed(result):
+        buffer = io.StringIO()
+        monkeypatch.setattr(terminal, "out_console",
+                            Console(file=buffer, width=120, color_system=None))
+        terminal.print_robustness(result)
+        return buffer.getvalue()
+
+    text = printed(r)
+    assert "target NOT met" in text and "meets target across band" not in text
+    flipped = r | {"band_design": robust | {"meets_target_across_band": True}}
+    text = printed(flipped)
+    assert "meets target across band" in text and "NOT met" not in text

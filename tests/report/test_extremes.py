@@ -85,3 +85,33 @@ def test_recommended_design_shows_its_peak_by_each_estimate(case_report):
     keyed = {c["attrs"].get("data-key") for c in cells_of(html)}
     assert "recommended.peak_estimates.vanmarcke_peak_acceleration_m_s2" in keyed
     assert "recommended.peak_estimates.simulated_peak_acceleration_m_s2" in keyed
+
+
+def test_terminal_shows_the_fifty_year_exceedance_and_the_recommendation(case_report,
+                                                                         monkeypatch):
+    # Issue 11: "Nothing in the terminal ... flags it" and "no line says which to specify".
+    # The terminal's tables and lines are read from the same results.json.
+    import io
+
+    from rich.console import Console
+
+    from tmd import terminal
+
+    case, results, _ = _kestrel(case_report)
+    buffer = io.StringIO()
+    monkeypatch.setattr(terminal, "out_console", Console(file=buffer, width=120,
+                                                         color_system=None))
+    monkeypatch.setattr(terminal, "err_console", Console(file=buffer, width=120,
+                                                         color_system=None))
+    table = terminal.return_period_table(results)
+    terminal.out_console.print(table)
+    terminal.print_recommendation(results)
+    terminal.print_notes(results)
+    text = buffer.getvalue()
+    rows = {r["return_period_years"]: r["design"]["stroke_within_limit"]
+            for r in results["by_return_period"]}
+    assert rows == {1.0: True, 10.0: True, 50.0: False}
+    fifty = [line for line in text.splitlines() if line.strip().startswith("│") and "50 y" in line]
+    assert fifty and "EXCEEDED" in fifty[0]
+    assert "Recommended: the band-robust design" in text
+    assert "at the 50-year wind the peak stroke" in text  # the warning
