@@ -2,6 +2,7 @@
 crossing law on simulated records, and the stroke constraint at a second load."""
 
 import math
+import warnings
 
 import numpy as np
 import pytest
@@ -232,3 +233,40 @@ def test_bank_holds_the_stroke_limit_at_the_stroke_load():
     # re-check, tolerance 1e-9 in tmd.sizing.bank), at more mass than the free bank.
     assert np.max(strokes(held, extreme)) <= limit * (1 + 1e-9)
     assert held.mass_ratio > free.mass_ratio
+
+
+class _Reached(Exception):
+    """Raised by a stand-in once it has seen its arguments (the test needs no more)."""
+
+
+@pytest.mark.parametrize("job, target", [
+    ("design_job", "tmd.jobs.robustness.robustness_study"),
+    ("compare_job", "tmd.compare.size_tmd_bank"),
+])
+def test_stroke_return_period_reaches_the_band_design_and_the_bank(tmp_path, monkeypatch, job,
+                                                                   target):
+    # The jobs hand the wind of [damper] stroke_return_period_years to the band-robust
+    # design and to the bank (their constraint itself is tested above): the 50-year load.
+    import tmd.jobs
+    from tmd.case import read_case
+
+    path = tmp_path / "case.toml"
+    path.write_text(WIND_CASE + "stroke_return_period_years = 50.0\n[robustness]\n"
+                    "[options]\nenabled = [\"tmd-bank\"]\n", encoding="utf-8")
+    case = read_case(path)
+    seen = {}
+
+    def stand_in(*args, **kwargs):
+        seen.update(kwargs)
+        raise _Reached
+
+    module, name = target.rsplit(".", 1)
+    monkeypatch.setattr(module + "." + name, stand_in)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        with pytest.raises(_Reached):
+            getattr(tmd.jobs, job)(case)
+    (load,) = seen["stroke_loads"]
+    fifty = next(w for w in case.wind_loads if w.return_period_years == 50.0)
+    assert load.spectrum is fifty.spectrum
+    assert load.mode.damping_ratio == case.mode.damping_ratio + fifty.aerodynamic_damping_ratio
