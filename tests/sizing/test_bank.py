@@ -111,3 +111,37 @@ def test_phantom_members_are_pruned_and_the_bank_rechecked(kestrel_case):
         assert float(np.max(a.peak_stroke_m)) <= 1.2 * (1 + 1e-9)  # the re-check's tolerance
     assert strict.pruned and "removed" in strict.message
     assert strict.mass_kg.size < bank.mass_kg.size
+
+
+def test_the_convex_step_is_well_scaled_at_any_spectrum_range(kestrel_case):
+    # Issue 13, defect 15 (root cause of a failed fix): with the Kestrel Point
+    # load tabulated to 1 kHz, |Z / k_s| reached 1e7 at the top nodes while the
+    # weights fell to 1e-30, and CLARABEL failed ("Solver 'CLARABEL' failed").
+    # Each node's bound is now taken relative to |Z| at the current masses. The
+    # two loads differ by about 1% in the acceleration's second moment (with the
+    # demo table cut at 10 Hz; less than 0.1% where it continues as its f^-11/3
+    # asymptote), so the two banks, both re-checked by the engine, must agree:
+    # 0.5% in mass allows for that and for the convex-concave procedure stopping
+    # at a relative decrease of 1e-4 per step on slightly different paths
+    # (measured 0.15% and 0.03%).
+    import dataclasses
+    import warnings
+
+    from tmd.jobs import loaded_mode_of
+    from tmd.loads import modal_force_spectrum
+
+    loaded = loaded_mode_of(kestrel_case)
+    wide = dataclasses.replace(loaded, spectrum=modal_force_spectrum(
+        kestrel_case.site, kestrel_case.building, 1.0, frequency_hz=np.geomspace(1e-4, 1e3, 400)))
+    assert wide.spectrum.f_max_hz == 1e3
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        banks = [size_tmd_bank(lm, 0.06, max_mass_ratio=0.05, max_stroke_m=1.2)
+                 for lm in (loaded, wide)]
+    for bank, lm in zip(banks, (loaded, wide), strict=True):
+        assert bank.meets_target and bank.governed_by == "target"
+        m = lm.mode
+        a = assess(m.frequency_hz, m.modal_mass_kg, m.damping_ratio, bank.absorbers,
+                   lm.spectrum, lm.duration_s, shape_factor=lm.shape_factor)
+        assert float(np.ravel(a.peak_acceleration_m_s2)[0]) <= 0.06
+    assert banks[1].mass_ratio == pytest.approx(banks[0].mass_ratio, rel=5e-3)
