@@ -9,6 +9,7 @@ the nominal point), and every result passes tests/consistency.py.
 import dataclasses
 import json
 import warnings
+from pathlib import Path
 
 import pytest
 
@@ -159,3 +160,18 @@ def test_robust_row_label_follows_its_own_band_verdict(monkeypatch):
     flipped = r | {"band_design": robust | {"meets_target_across_band": True}}
     text = printed(flipped)
     assert "meets target across band" in text and "NOT met" not in text
+
+
+def test_wind_model_loads_need_no_cut_off_and_a_users_table_keeps_its_warning(design_results):
+    # Issue 13, defect 15: "for wind cases, where the user does not choose the
+    # cut-off, extend the range instead of warning". The wind model's table
+    # continues as its asymptotic power law (tests/wind/test_loads.py), so no
+    # load of the Kestrel Point design (1, 10, 50 years, sweeps and band check)
+    # warns about its upper edge; Harbourline's CSV ends where its author chose
+    # (10 Hz) and keeps the warning, which names that table.
+    cases = Path(__file__).resolve().parents[1] / "cases"
+    kestrel = design_results(cases / "kestrel_point.toml")
+    assert kestrel["warnings"] and not [w for w in kestrel["warnings"] if "top decade" in w]
+    harbour = design_results(cases / "harbourline_residences.toml")
+    edge = [w for w in harbour["warnings"] if "top decade" in w]
+    assert edge and all("harbourline_force.csv" in w for w in edge)

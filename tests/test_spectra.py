@@ -31,6 +31,31 @@ def test_table_variance_matches_quadrature():
     assert table.variance() == pytest.approx(ref, rel=1e-9)
 
 
+def test_power_law_tail_continues_the_table_and_its_variance():
+    # Issue 13, defect 15: a wind-model table continues above its last row as
+    # S_n (f / f_n)^p. Reference for the variance: scipy.integrate.quad over the
+    # table (nodes as breakpoints) plus quad over [f_n, inf); by hand, the tail
+    # alone is S_n f_n / (-p - 1).
+    f = np.geomspace(0.01, 3.0, 25)
+    s = 1.0 / (1 + (f / 0.1) ** 2) ** (11 / 6)
+    table = TabulatedSpectrum(f, s, tail_exponent=-11 / 3)
+    assert table.f_max_hz == np.inf and table.breakpoints_hz[-1] == f[-1]
+    assert table(np.array([6.0]))[0] == pytest.approx(s[-1] * 2.0 ** (-11 / 3), rel=1e-13)
+    np.testing.assert_array_equal(table(f), TabulatedSpectrum(f, s)(f))  # unchanged on the table
+
+    def one(x):
+        return float(table(np.array([x]))[0])
+
+    ref = (quad(one, f[0], f[-1], points=f[1:-1], limit=200, epsrel=1e-12)[0]
+           + quad(one, f[-1], np.inf, epsabs=0, epsrel=1e-12)[0])
+    assert table.variance() == pytest.approx(ref, rel=1e-9)
+    assert table.variance() - TabulatedSpectrum(f, s).variance() == pytest.approx(
+        s[-1] * f[-1] / (11 / 3 - 1), rel=1e-12)
+    for bad in (-1.0, 0.5, float("nan")):
+        with pytest.raises(ValueError, match="tail_exponent"):
+            TabulatedSpectrum(f, s, tail_exponent=bad)
+
+
 @pytest.mark.parametrize("body, needle", [
     ("freq,psd\n0.1,1\n0.2,1\n", "expected 'frequency_hz,psd_n2_per_hz'"),
     ("frequency_hz,psd_n2_per_hz\n0.1,1\n0.1,2\n", "strictly increasing"),

@@ -45,6 +45,19 @@ COHERENCE_MODELS = ("exponential", "exponential-vertical", "admittance")
 # that many doubles, ~8 MB), so that memory stays bounded at any n_strips.
 PAIR_BLOCK_ELEMENTS = 65536
 DEFAULT_FREQUENCY_HZ = np.geomspace(1e-4, 10.0, 400)
+# Above the default table the modal force continues as the power law of its
+# last interval. Every turbulence spectrum here falls as f^-5/3 and the
+# exponential coherence averaged over height and breadth as f^-2 (f^-1 each),
+# so the table tends to f^-11/3 (its last slope is -3.65 on the demos): the
+# acceleration's second moment, an integral of f^2 S_F / M*^2 at high
+# frequency, then converges and no longer depends on a cut-off. Where the last
+# slope is -3 or shallower (coherence over height alone: f^-8/3) that moment
+# grows without bound, so the table keeps its range and the engine's
+# upper-edge warning stands. Tabulating further instead is worse: above about
+# 100 Hz the strips' averaged coherences lose accuracy (Kestrel Point's slope
+# falls to -10 at 1 kHz), and the simulated records would need a step below
+# 1/2000 s for a table reaching 1 kHz.
+TAIL_SLOPE_LIMIT = -3.0
 _GAUSS_NODES, _GAUSS_WEIGHTS = np.polynomial.legendre.leggauss(16)
 _GAUSS_NODES = 0.5 * (_GAUSS_NODES + 1.0)  # on [0, 1]
 _GAUSS_WEIGHTS = 0.5 * _GAUSS_WEIGHTS
@@ -425,7 +438,9 @@ def modal_force_spectrum(site, building, return_period_years=50.0, *, spectrum="
         Coherence decay constants C_z, C_y [-].
     frequency_hz : array, optional
         Table frequencies [Hz], increasing and > 0; default 400 log-spaced
-        points from 1e-4 to 10 Hz.
+        points from 1e-4 to 10 Hz, continued above 10 Hz by the power law of
+        the last interval (:func:`tail_exponent`). Given frequencies get no
+        continuation.
 
     Returns
     -------
@@ -452,7 +467,34 @@ def modal_force_spectrum(site, building, return_period_years=50.0, *, spectrum="
     )
     source = (f"along-wind modal force: {spectrum} spectrum, {coherence} coherence, "
               f"T = {return_period_years:g} yr, {n_strips} strips")
-    return TabulatedSpectrum(f, s_f, source=source)
+    tail = tail_exponent(f, s_f) if frequency_hz is None else None
+    return TabulatedSpectrum(f, s_f, source=source, tail_exponent=tail)
+
+
+def tail_exponent(frequency_hz, psd):
+    """The power law that continues a modal force table above its last row [-].
+
+    Parameters
+    ----------
+    frequency_hz, psd : array
+        The table [Hz], [N^2/Hz].
+
+    Returns
+    -------
+    float or None
+        The log-log slope of the last interval, or None where it is not below
+        TAIL_SLOPE_LIMIT = -3 (the acceleration's second moment would diverge).
+
+    Notes
+    -----
+    The slope tends to -5/3 - 2 = -11/3 (turbulence spectrum times the
+    coherence averaged over height and breadth, see DEFAULT_FREQUENCY_HZ's
+    note) from above, so continuing the last interval's slope slightly
+    overstates the tail: on Kestrel Point -3.652 at 10 Hz against -3.667.
+    """
+    f, s = np.asarray(frequency_hz, float), np.asarray(psd, float)
+    slope = float(np.log(s[-1] / s[-2]) / np.log(f[-1] / f[-2]))
+    return slope if np.isfinite(slope) and slope < TAIL_SLOPE_LIMIT else None
 
 
 def modal_force_spectra(site, building, return_periods_years, *, reference_period_years=None,
@@ -521,8 +563,9 @@ def modal_force_spectra(site, building, return_periods_years, *, reference_perio
         source = (f"along-wind modal force: {spectrum} spectrum, {coherence} coherence, "
                   f"T = {t:g} yr, {n_strips} strips"
                   + ("" if t == reference else f" (scaled from T = {reference:g} yr)"))
-        out.append(TabulatedSpectrum(nodes[keep], c**3 * table.psd_n2_per_hz[keep],
-                                     source=source))
+        psd = c**3 * table.psd_n2_per_hz[keep]
+        out.append(TabulatedSpectrum(nodes[keep], psd, source=source,
+                                     tail_exponent=tail_exponent(nodes[keep], psd)))
     return out
 
 

@@ -134,7 +134,8 @@ class TabulatedSpectrum:
 
     Between table points log S is linear in log f (a power law on each
     interval); outside the table the spectrum is zero, so the response is
-    integrated over the table's range only.
+    integrated over the table's range only, unless ``tail_exponent`` continues
+    it above the last row.
 
     Parameters
     ----------
@@ -144,11 +145,18 @@ class TabulatedSpectrum:
         Strictly positive one-sided PSD values [N^2/Hz].
     source : str
         Where the table came from (shown in reports).
+    tail_exponent : float, optional
+        p < -1 [-]: above the last row f_n the spectrum is the power law
+        S(f) = S_n (f / f_n)^p up to infinity (``f_max_hz`` is then inf), for
+        a model whose asymptote is known (:func:`tmd.loads.modal_force_spectrum`).
+        Default None: zero above the table (a user's table ends where its
+        author chose).
     """
 
     frequency_hz: np.ndarray
     psd_n2_per_hz: np.ndarray
     source: str = ""
+    tail_exponent: float | None = None
     _log_f: np.ndarray = field(init=False, repr=False, compare=False)
     _log_s: np.ndarray = field(init=False, repr=False, compare=False)
 
@@ -158,6 +166,10 @@ class TabulatedSpectrum:
         problem = table_problem(f, s)
         if problem:
             raise ValueError(problem)
+        p = self.tail_exponent
+        if p is not None and not (isinstance(p, int | float) and np.isfinite(p) and p < -1):
+            raise ValueError(f"tail_exponent = {p!r}; must be a finite number < -1 (a finite "
+                             "variance)")
         object.__setattr__(self, "frequency_hz", f)
         object.__setattr__(self, "psd_n2_per_hz", s)
         object.__setattr__(self, "_log_f", np.log(f))
@@ -170,8 +182,8 @@ class TabulatedSpectrum:
 
     @property
     def f_max_hz(self) -> float:
-        """Highest tabulated frequency [Hz]; the spectrum is zero above it."""
-        return float(self.frequency_hz[-1])
+        """Highest tabulated frequency [Hz]; the spectrum is zero above it, or inf with a tail."""
+        return float(self.frequency_hz[-1]) if self.tail_exponent is None else np.inf
 
     @property
     def breakpoints_hz(self) -> tuple[float, ...]:
@@ -192,10 +204,15 @@ class TabulatedSpectrum:
             One-sided modal force PSD [N^2/Hz], of the shape of ``frequency_hz``.
         """
         f = np.asarray(frequency_hz, dtype=float)
-        inside = (f >= self.f_min_hz) & (f <= self.f_max_hz)
+        last = self.frequency_hz[-1]
+        inside = (f >= self.f_min_hz) & (f <= last)
         logf = np.log(np.where(inside, f, self.f_min_hz))
-        value = np.exp(np.interp(logf, self._log_f, self._log_s))
-        return np.where(inside, value, 0.0)
+        value = np.where(inside, np.exp(np.interp(logf, self._log_f, self._log_s)), 0.0)
+        if self.tail_exponent is None:
+            return value
+        above = f > last
+        tail = self.psd_n2_per_hz[-1] * (np.where(above, f, last) / last) ** self.tail_exponent
+        return np.where(above, tail, value)
 
     def variance(self) -> float:
         """Return the force variance [N^2], the exact integral of the log-log interpolant.
@@ -203,7 +220,8 @@ class TabulatedSpectrum:
         Returns
         -------
         float
-            sigma_F^2 = integral of S_F(f) df over the table's range [N^2].
+            sigma_F^2 = integral of S_F(f) df over the table's range, plus the
+            tail's S_n f_n / (-p - 1) where it has one [N^2].
 
         Notes
         -----
@@ -219,7 +237,8 @@ class TabulatedSpectrum:
         with np.errstate(divide="ignore", invalid="ignore"):
             general = s0 * f0 / power * ((f1 / f0) ** power - 1.0)
         log_case = s0 * f0 * np.log(f1 / f0)
-        return float(np.sum(np.where(np.abs(power) < 1e-12, log_case, general)))
+        tail = 0.0 if self.tail_exponent is None else s[-1] * f[-1] / -(self.tail_exponent + 1)
+        return float(np.sum(np.where(np.abs(power) < 1e-12, log_case, general))) + tail
 
 
 def table_problem(frequency_hz: np.ndarray, psd: np.ndarray, *, first_row: int = 1,

@@ -120,6 +120,33 @@ def test_modal_force_spectrum_is_a_cheap_table():
     assert s_ref.shape == f_ref.shape
 
 
+def test_default_table_continues_as_its_asymptotic_power_law():
+    # Issue 13, defect 15: the wind model's table ends at 10 Hz, where 2-5% of
+    # the acceleration's second moment came from its top decade. Theory (from
+    # memory): every turbulence spectrum here falls as f^-5/3 (Kolmogorov's
+    # inertial range) and the root coherence averaged over a strip falls as
+    # f^-1 in each direction averaged, so the modal force tends to f^-11/3
+    # with both and to f^-8/3 with height alone; the table's last slope
+    # approaches that from above and continues it only where f^2 S_F is
+    # integrable (slope < -3).
+    both = modal_force_spectrum(SITE, TOWER, 1.0)
+    assert both.f_max_hz == math.inf
+    assert -11 / 3 < both.tail_exponent < -11 / 3 + 0.05
+    height_only = modal_force_spectrum(SITE, TOWER, 1.0, coherence="exponential-vertical")
+    assert height_only.tail_exponent is None and height_only.f_max_hz == 10.0
+    assert -8 / 3 - 0.05 < math.log(height_only.psd_n2_per_hz[-1] / height_only.psd_n2_per_hz[-2]
+                                    ) / math.log(height_only.frequency_hz[-1]
+                                                 / height_only.frequency_hz[-2]) < -8 / 3 + 0.05
+    # Given frequencies are the caller's range: no continuation.
+    assert modal_force_spectrum(SITE, TOWER, 1.0, frequency_hz=[0.1, 1.0, 2.0]).f_max_hz == 2.0
+    # The return periods' scaled tables (S_F(f; T) = c^3 S_F(f / c; T_ref)) continue with
+    # their own last slope: the reference period's exactly, the 50-year one's from a
+    # table ending at 10 Hz / c on the reference curve (0.004 shallower here).
+    first, fifty = modal_force_spectra(SITE, TOWER, [1.0, 50.0])
+    assert first.tail_exponent == both.tail_exponent
+    assert fifty.tail_exponent == pytest.approx(both.tail_exponent, abs=0.01)
+
+
 def test_mode_shape_normalised_at_damper():
     # Project convention (tmd/structure.py): phi = 1 at the damper height.
     b = Building(120.0, 30.0, 30.0, 1.2, mode_shape_exponent=1.5, damper_height_m=100.0,

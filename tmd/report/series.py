@@ -76,7 +76,7 @@ def response_frequencies(structure_frequency_hz: float) -> np.ndarray:
 
 
 def force_spectrum_curve(load: LoadedMode) -> tuple[np.ndarray, np.ndarray]:
-    """The modal force PSD S_F(f) [N^2/Hz] over its support (or f_s/100 .. 100 f_s).
+    """The modal force PSD S_F(f) [N^2/Hz] over its table, or its support (or f_s/100 .. 100 f_s).
 
     Returns
     -------
@@ -85,6 +85,9 @@ def force_spectrum_curve(load: LoadedMode) -> tuple[np.ndarray, np.ndarray]:
     fs = load.mode.frequency_hz
     lo = load.spectrum.f_min_hz if load.spectrum.f_min_hz > 0 else fs / SPECTRUM_SPAN
     hi = load.spectrum.f_max_hz if np.isfinite(load.spectrum.f_max_hz) else fs * SPECTRUM_SPAN
+    table = getattr(load.spectrum, "frequency_hz", None)
+    if table is not None:  # a table continued by a power law (wind model): draw the table
+        hi = float(table[-1])
     f = np.geomspace(lo, hi, SPECTRUM_POINTS)
     return f, np.asarray(load.spectrum(f), dtype=float)
 
