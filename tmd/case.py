@@ -328,9 +328,10 @@ def is_building_case(path: str | Path) -> bool:
     bool
     """
     try:
-        with open(path, "rb") as handle:
-            return "modes" in tomllib.load(handle)
-    except (OSError, tomllib.TOMLDecodeError):
+        # utf-8-sig as read_case reads it: a BOM does not hide [[modes]]; a file that is
+        # not UTF-8 is left to read_case, which names it (exit 2).
+        return "modes" in tomllib.loads(Path(path).read_bytes().decode("utf-8-sig"))
+    except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError):
         return False
 
 
