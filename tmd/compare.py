@@ -62,7 +62,25 @@ BAND_POINTS = 41
 
 @dataclass(frozen=True)
 class OptionSettings:
-    """Settings of every option (defaults are ours; see each settings class)."""
+    """Settings of every option (defaults are ours; see each settings class).
+
+    Parameters
+    ----------
+    pendulum : PendulumSettings
+        Number of pendulum stages.
+    bank : BankSettings
+        The bank's candidate frequency and damping ratios, scenarios and
+        iteration limits.
+    column : ColumnSettings
+        The liquid column's length ratio, column count, excursion limit and
+        liquid density.
+    tank : TankSettings
+        The sloshing tanks' depth ratio, width limit, freeboard, screens and
+        water properties.
+    viscous : ViscousSettings
+        The viscous dampers' deformation per modal displacement, count and
+        capacities.
+    """
 
     pendulum: PendulumSettings = field(default_factory=PendulumSettings)
     bank: BankSettings = field(default_factory=BankSettings)
@@ -106,6 +124,7 @@ def compare_options(loaded: LoadedMode, target_peak_m_s2: float, *, enabled=None
     Parameters
     ----------
     loaded : LoadedMode
+        The mode under its design load, with the reporting conventions.
     target_peak_m_s2 : float
         Peak acceleration target at the evaluation height [m/s^2].
     enabled : sequence of str, optional
@@ -120,6 +139,7 @@ def compare_options(loaded: LoadedMode, target_peak_m_s2: float, *, enabled=None
         Half-width b of the structure-frequency band for the worst-case
         peak [-].
     settings : OptionSettings, optional
+        Each option's layout settings; their defaults otherwise.
     tmd_sizing : tmd.design.Sizing, optional
         The case's own TMD sizing (fixed mass ratio and objective, or least
         mass), so that the TMD and pendulum rows are the design job's TMD;
@@ -363,7 +383,7 @@ if tuple(OPTIONS) != OPTION_NAMES:  # the registry the case file validates again
 
 
 def _measured(job: _Job, a, mass_ratio, peaks) -> dict:
-    """The common keys of a row from an engine assessment of the design."""
+    """Return the common keys of a row from an engine assessment of the design."""
     m = job.loaded.mode
     sigma = float(np.asarray(a.sigma_acceleration_m_s2).ravel()[0])
     zeta_eff = float(effective_damping_ratio(m.frequency_hz, m.modal_mass_kg,

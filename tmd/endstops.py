@@ -76,7 +76,7 @@ class StrokeStatistics:
 
     @property
     def peak_stroke_m(self) -> float:
-        """g sigma_r [m]."""
+        """Peak stroke relative to the structure, g sigma_r [m]."""
         return self.peak_factor * self.sigma_stroke_m
 
 
@@ -88,6 +88,7 @@ def stroke_statistics(load: LoadedMode, damper: TunedMassDamper) -> StrokeStatis
     load : LoadedMode
         Mode, load spectrum and duration.
     damper : TunedMassDamper
+        The TMD by mass ratio, frequency ratio and damping ratio (relative to the mode).
 
     Returns
     -------
@@ -109,7 +110,7 @@ def stroke_statistics(load: LoadedMode, damper: TunedMassDamper) -> StrokeStatis
 
 
 def contacts_per_hour(level_m, sigma_m, upcrossing_hz):
-    """Expected crossings per hour of a level by a Gaussian process, one side (Rice).
+    """Return the expected crossings per hour of a level by a Gaussian process, one side (Rice).
 
     Parameters
     ----------
@@ -188,7 +189,7 @@ def connection_force_estimate_n(peak_factor, stiffness_n_per_m, damping_n_s_per_
 
 def end_stop_block(loads: list[tuple[float | None, LoadedMode]], damper: TunedMassDamper,
                    max_stroke_m: float | None) -> dict:
-    """The ``end_stops`` block of results.json for a TMD design.
+    """Return the ``end_stops`` block of results.json for a TMD design.
 
     Parameters
     ----------

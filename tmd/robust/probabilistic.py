@@ -99,7 +99,26 @@ class Distribution(StrEnum):
     LOGNORMAL = "lognormal"
 
     def factor(self, standard_normal, cov: float):
-        """The factor X(u) [-] for standard normal u and coefficient of variation ``cov``."""
+        """Return the factor X(u) [-] for standard normal u and coefficient of variation ``cov``.
+
+        Parameters
+        ----------
+        standard_normal : float or array
+            u, standard normal variates [-].
+        cov : float
+            Coefficient of variation of X [-].
+
+        Returns
+        -------
+        numpy.ndarray
+            X(u) [-], of mean 1: max(1 + cov u, 0.02) for the normal (floored
+            so that a factor stays positive), exp(sigma u - sigma^2 / 2) with
+            sigma^2 = ln(1 + cov^2) for the lognormal.
+
+        References
+        ----------
+        Lognormal moments, common practice (any probability text).
+        """
         u = np.asarray(standard_normal, float)
         if self is Distribution.NORMAL:
             return np.maximum(1.0 + cov * u, NORMAL_FLOOR)
@@ -107,7 +126,18 @@ class Distribution(StrEnum):
         return np.exp(math.sqrt(sigma2) * u - 0.5 * sigma2)
 
     def kinks(self, cov: float) -> tuple[float, ...]:
-        """Standard-normal values where X(u) is not smooth (the normal's floor)."""
+        """Return the standard-normal values where X(u) is not smooth (the normal's floor).
+
+        Parameters
+        ----------
+        cov : float
+            Coefficient of variation of X [-].
+
+        Returns
+        -------
+        tuple of float
+            u = (0.02 - 1) / cov for the normal; empty for the lognormal.
+        """
         return ((NORMAL_FLOOR - 1.0) / cov,) if self is Distribution.NORMAL else ()
 
 
@@ -167,7 +197,14 @@ class Uncertainty:
                              f"{self.inner_points!r} and {self.damping_nodes!r}")
 
     def inputs(self) -> dict:
-        """The inputs as the ``probabilistic.inputs`` block."""
+        """Return the inputs as the ``probabilistic.inputs`` block.
+
+        Returns
+        -------
+        dict
+            ``frequency_cov``, ``damping_cov`` [-], ``distribution``,
+            ``exceedance_probability`` [-], ``seed`` and ``sample_count``.
+        """
         return {"frequency_cov": self.frequency_cov, "damping_cov": self.damping_cov,
                 "distribution": self.distribution.value,
                 "exceedance_probability": self.exceedance_probability, "seed": self.seed,
@@ -176,7 +213,17 @@ class Uncertainty:
 
 @dataclass(frozen=True)
 class SampledProbability:
-    """A sampling estimate of a probability with its standard error."""
+    """A sampling estimate of a probability with its standard error.
+
+    Parameters
+    ----------
+    probability : float
+        p, the share of samples in which the event occurred [-].
+    standard_error : float
+        sqrt(p (1 - p) / N) [-].
+    sample_count : int
+        N, the number of samples.
+    """
 
     probability: float
     standard_error: float
@@ -189,6 +236,19 @@ class ProbabilisticSizing:
 
     ``governed_by`` is "probability" (met exactly), "mass" (not reachable
     within the largest mass ratio) or "bare" (no damper needed).
+
+    Parameters
+    ----------
+    design : TmdDesign or None
+        The least-mass design (None when no damper is needed).
+    exceedance_probability : float
+        Its probability that the peak acceleration exceeds the target [-].
+    meets_probability : bool
+        Whether that probability is at most the acceptable one.
+    governed_by : str
+        "probability", "mass" or "bare".
+    message : str
+        The outcome in one plain sentence.
     """
 
     design: TmdDesign | None
@@ -204,17 +264,21 @@ def probabilistic_study(loaded: LoadedMode, nominal: TunedMassDamper, target_pea
                         uncertainty: Uncertainty, *, robust: TunedMassDamper | None = None,
                         max_mass_ratio: float = MAX_MASS_RATIO, max_stroke_m: float | None = None,
                         structure_damping_ratio: StructureDamping | None = None) -> dict:
-    """The ``probabilistic`` block: exceedance probabilities and the least mass for one.
+    """Return the ``probabilistic`` block: exceedance probabilities and the least mass for one.
 
     Parameters
     ----------
     loaded : LoadedMode
         The mode under its design load, with the reporting conventions.
-    nominal, robust : TunedMassDamper
-        The nominal design and (optionally) the band-robust one.
+    nominal : TunedMassDamper
+        The nominal design.
     target_peak_m_s2 : float
         Peak acceleration target [m/s^2].
     uncertainty : Uncertainty
+        The random structure frequency and damping (coefficients of variation,
+        distribution) and the sampling seed and count.
+    robust : TunedMassDamper, optional
+        The band-robust design, when there is one.
     max_mass_ratio : float
         Largest mass ratio of the least-mass search [-].
     max_stroke_m : float, optional
@@ -272,6 +336,8 @@ def exceedance_probability(loaded: LoadedMode, damper: TunedMassDamper | None,
     target_peak_m_s2 : float
         Peak acceleration target [m/s^2].
     uncertainty : Uncertainty
+        The random structure frequency and damping (coefficients of variation,
+        distribution) and the sampling seed and count.
     structure_damping_ratio : callable, optional
         zeta_s(s) [-] before the damping factor e multiplies it.
 
@@ -378,7 +444,26 @@ def sampled_exceedance_probability(loaded: LoadedMode, damper: TunedMassDamper |
                                    target_peak_m_s2: float, uncertainty: Uncertainty, *,
                                    structure_damping_ratio: StructureDamping | None = None
                                    ) -> SampledProbability:
-    """P[a_peak > target] by seeded sampling, with its standard error.
+    """Return P[a_peak > target] by seeded sampling, with its standard error.
+
+    Parameters
+    ----------
+    loaded : LoadedMode
+        The mode under its design load, with the reporting conventions.
+    damper : TunedMassDamper or None
+        The design (fixed absolute properties); None for the bare building.
+    target_peak_m_s2 : float
+        Peak acceleration target [m/s^2].
+    uncertainty : Uncertainty
+        The random structure frequency and damping (coefficients of variation,
+        distribution) and the sampling seed and count.
+    structure_damping_ratio : callable, optional
+        zeta_s(s) [-] before the damping factor e multiplies it.
+
+    Returns
+    -------
+    SampledProbability
+        p and its standard error [-], with N.
 
     Notes
     -----
@@ -406,7 +491,7 @@ def least_mass_for_probability(loaded: LoadedMode, target_peak_m_s2: float,
                                max_stroke_m: float | None = None, min_mass_ratio: float = 1e-4,
                                structure_damping_ratio: StructureDamping | None = None,
                                start_mass_ratio: float | None = None) -> ProbabilisticSizing:
-    """Least mass whose exceedance probability is the acceptable one.
+    """Return the least mass whose exceedance probability is the acceptable one.
 
     Parameters
     ----------
@@ -416,10 +501,12 @@ def least_mass_for_probability(loaded: LoadedMode, target_peak_m_s2: float,
         Peak acceleration target [m/s^2].
     uncertainty : Uncertainty
         With ``exceedance_probability`` set.
-    max_mass_ratio, min_mass_ratio : float
-        Search range of the mass ratio [-].
+    max_mass_ratio : float
+        Largest mass ratio searched [-].
     max_stroke_m : float, optional
         Peak stroke limit [m] inside the nominal tuning.
+    min_mass_ratio : float
+        Smallest mass ratio searched [-].
     structure_damping_ratio : callable, optional
         zeta_s(s) [-].
     start_mass_ratio : float, optional
@@ -482,7 +569,7 @@ def least_mass_for_probability(loaded: LoadedMode, target_peak_m_s2: float,
                 f"the acceptable {accept:.3g}: no damper is needed"))
 
     def gap(log_mu):
-        """logit P - logit P_acceptable: nearly linear in log mu, so few steps find it."""
+        """Return logit P - logit P_acceptable: nearly linear in log mu, so few steps find it."""
         return _logit(at_log(log_mu)[1]) - target_logit
 
     lowest, highest = math.log(min_mass_ratio), math.log(max_mass_ratio)
