@@ -58,7 +58,7 @@ def __getattr__(name):
 
 
 def _job(name):
-    """The job function ``name``: this module's attribute, imported lazily."""
+    """Return the job function ``name``: this module's attribute, imported lazily."""
     return getattr(sys.modules[__name__], name)
 
 
@@ -169,7 +169,7 @@ def design(case: CaseArg,
 
 
 def _design_building(case_path: Path, out: Path | None) -> None:
-    """A whole-building case ([[modes]]): size the dampers, print, write JSON and CSV tables."""
+    """Run a whole-building case ([[modes]]): size the dampers, print, write JSON and CSV."""
     from tmd.building_case import load_building_case
     from tmd.building_job import building_design_job, building_tables
 
@@ -190,7 +190,7 @@ def _design_building(case_path: Path, out: Path | None) -> None:
 
 
 def _case_and_output(case_path: Path, out: Path | None):
-    """The validated case and its locked, checked output folder, before any computation.
+    """Return the validated case and its locked, checked output folder, before any computation.
 
     The folder is released when the command ends (see :func:`_guarded`).
     """
@@ -249,7 +249,7 @@ def evaluate(case: CaseArg,
 def _damper_from_options(mass_ratio, frequency_ratio, damping_ratio,
                          names=("--mass-ratio", "--frequency-ratio", "--damping-ratio")
                          ) -> TunedMassDamper:
-    """A TMD from options, judged by the case file's rules for the same quantities."""
+    """Return a TMD from options, judged by the case file's rules for the same quantities."""
     rules_of = (Ratio, FrequencyRatio, Ratio)
     values = [require(name, value, rule)
               for name, value, rule in zip(names, (mass_ratio, frequency_ratio, damping_ratio),
@@ -320,7 +320,7 @@ PROPERTY_OPTIONS = ("--damper-mass-kg", "--damper-stiffness-n-per-m",
 
 
 def _design_from(c, path, ratios, properties) -> TunedMassDamper:
-    """The damper to evaluate: a results.json design, three ratios or three built properties."""
+    """Return the damper to evaluate: a results.json design, three ratios or three properties."""
     chosen = [name for name, given in (
         ("--design-from", path is not None),
         ("the ratio options", any(v is not None for v in ratios)),
@@ -363,7 +363,7 @@ def _built_damper(mass_kg, stiffness_n_per_m, damping_n_s_per_m):
 
 
 def _design_block(path: Path) -> dict:
-    """The design block of a results.json (the recommended design where one is given)."""
+    """Return the design block of a results.json (the recommended design where one is given)."""
     try:
         data = json.loads(Path(path).read_text(encoding="utf-8-sig"))
     except (OSError, ValueError) as exc:
@@ -491,7 +491,7 @@ def _name_simulation_option(message: str) -> str:
 
 
 def _simulated_device_from(c, path: Path, option: str) -> dict:
-    """The device to simulate, read from a results.json."""
+    """Return the device to simulate, read from a results.json."""
     if option == "tmd":
         return {"kind": "tmd", "damper": _design_from(c, path, (None, None, None),
                                                       (None, None, None))}

@@ -46,7 +46,17 @@ ul.cautions li { margin-bottom: .3rem; }
 
 @dataclass(frozen=True)
 class Figure:
-    """A figure for the document: its PNG bytes and caption."""
+    """A figure for the document: its PNG bytes and caption.
+
+    Parameters
+    ----------
+    name : str
+        Short identifier, used in the figure's HTML id.
+    png : bytes
+        The rendered PNG image.
+    caption : str
+        What the figure shows, with the units of its axes.
+    """
 
     name: str
     png: bytes
@@ -55,14 +65,29 @@ class Figure:
 
 @dataclass(frozen=True)
 class Callout:
-    """A highlighted paragraph (an outcome the reader must not miss)."""
+    """A highlighted paragraph (an outcome the reader must not miss).
+
+    Parameters
+    ----------
+    text : str
+        The paragraph.
+    """
 
     text: str
 
 
 @dataclass
 class Section:
-    """A numbered section: a title and blocks (str paragraph, Callout, Table, Figure, list)."""
+    """A numbered section: a title and blocks (str paragraph, Callout, Table, Figure, list).
+
+    Parameters
+    ----------
+    title : str
+        The section's heading (numbered by :func:`document`).
+    blocks : list
+        Its content in order: str (a paragraph), Callout, Table, Figure, or a
+        list of str (a bulleted list).
+    """
 
     title: str
     blocks: list = field(default_factory=list)
@@ -89,7 +114,19 @@ def _value_attr(value) -> str:
 
 
 def table_html(table: Table) -> str:
-    """One <table> with its title and note."""
+    """Return one <table> with its title and note.
+
+    Parameters
+    ----------
+    table : Table
+        The table; cells carrying a results value get ``data-key``,
+        ``data-value`` and, when converted, ``data-scale``.
+
+    Returns
+    -------
+    str
+        The HTML fragment (heading, table, note).
+    """
     head = "".join(_cell("th", c) for c in table.header)
     body = "\n".join("<tr>" + "".join(_cell("td", c) for c in row) + "</tr>"
                      for row in table.rows)
@@ -99,6 +136,20 @@ def table_html(table: Table) -> str:
 
 
 def figure_html(figure: Figure, number: int) -> str:
+    """Return one <figure> with the PNG inlined as a base64 data URI.
+
+    Parameters
+    ----------
+    figure : Figure
+        The figure.
+    number : int
+        Its number in the document, printed before the caption.
+
+    Returns
+    -------
+    str
+        The HTML fragment.
+    """
     data = base64.b64encode(figure.png).decode("ascii")
     return (f'<figure id="figure-{escape(figure.name)}"><img alt="{escape(figure.caption)}" '
             f'src="data:image/png;base64,{data}"><figcaption>Figure {number}. '
@@ -106,7 +157,22 @@ def figure_html(figure: Figure, number: int) -> str:
 
 
 def document(title: str, lead: str, sections: list[Section]) -> str:
-    """The complete HTML text."""
+    """Return the complete, self-contained HTML text.
+
+    Parameters
+    ----------
+    title : str
+        The document's title (also its <h1>).
+    lead : str
+        The paragraph under the title.
+    sections : list of Section
+        The numbered sections in order.
+
+    Returns
+    -------
+    str
+        The document: inline CSS, figures as data URIs, no external reference.
+    """
     parts, figures = [], 0
     for number, section in enumerate(sections, start=1):
         parts.append(f"<h2>{number}. {escape(section.title)}</h2>")

@@ -20,7 +20,17 @@ StepCallback = Callable[[int, int, str], None]
 
 
 def quiet_step(done: int, total: int, description: str) -> None:
-    """The do-nothing callback (non-interactive runs, tests)."""
+    """Do nothing: the callback of non-interactive runs and tests.
+
+    Parameters
+    ----------
+    done : int
+        Steps finished so far.
+    total : int
+        Steps in all.
+    description : str
+        What the current step does.
+    """
 
 
 @contextmanager
@@ -37,9 +47,11 @@ def progress_bar(title: str, *, console: Console | None = None,
     enabled : bool, optional
         Force the bar on or off; default: on only when ``console`` is a terminal.
 
-    Returns
-    -------
-    context manager yielding a callable ``on_step(done, total, description)``.
+    Yields
+    ------
+    callable
+        ``on_step(done, total, description)``; :func:`quiet_step` when the
+        bar is off.
     """
     console = console or Console(stderr=True)
     if not (console.is_terminal if enabled is None else enabled):
