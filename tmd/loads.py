@@ -162,7 +162,17 @@ class Building:
         return np.interp(z, self.mode_shape_heights_m, self.mode_shape_values, left=0.0)
 
     def mode_shape(self, height_m):
-        """Mode shape phi(z) [-], normalised to 1 at the damper height.
+        """Return the mode shape phi(z) [-], normalised to 1 at the damper height.
+
+        Parameters
+        ----------
+        height_m : float or array
+            z, height above ground [m].
+
+        Returns
+        -------
+        float or numpy.ndarray
+            phi(z) [-], of the shape of ``height_m``.
 
         Notes
         -----
@@ -197,9 +207,22 @@ class Building:
         return value
 
     def equivalent_mass_per_length(self, modal_mass_kg: float) -> float:
-        """Equivalent mass per length m_e [kg/m] (EN 1991-1-4 F.4 with a uniform mass).
+        """Return the equivalent mass per length m_e [kg/m] (EN 1991-1-4 F.4, uniform mass).
 
-        ``mass_per_length_kg_m`` if given, otherwise M* / integral of phi^2.
+        Parameters
+        ----------
+        modal_mass_kg : float
+            M*, modal mass with the mode shape = 1 at the damper [kg].
+
+        Returns
+        -------
+        float
+            m_e [kg/m]: ``mass_per_length_kg_m`` if given, otherwise
+            M* / integral of phi(z)^2 dz over the height.
+
+        References
+        ----------
+        EN 1991-1-4:2005+A1:2010, Annex F, F.4 (equivalent mass).
         """
         if self.mass_per_length_kg_m is not None:
             return float(self.mass_per_length_kg_m)
@@ -208,12 +231,49 @@ class Building:
 
 
 def reference_height(site, building) -> float:
-    """EN reference height z_s = 0.6 h, not below z_min [m] (EN 1991-1-4 Fig. 6.1)."""
+    """Return the EN reference height z_s = 0.6 h, not below z_min [m] (EN 1991-1-4 Fig. 6.1).
+
+    Parameters
+    ----------
+    site : tmd.wind.Site
+        The wind climate and terrain at the building (its z_min).
+    building : Building
+        The building (its height h).
+
+    Returns
+    -------
+    float
+        z_s [m].
+
+    References
+    ----------
+    EN 1991-1-4:2005+A1:2010, 6.3.1, Figure 6.1.
+    """
     return max(0.6 * building.height_m, site.minimum_height_m)
 
 
 def height_strips(height_m: float, n_strips: int):
-    """Midpoints and lengths [m] of ``n_strips`` equal strips over 0..h."""
+    """Return the midpoints and lengths [m] of ``n_strips`` equal strips over 0..h.
+
+    Parameters
+    ----------
+    height_m : float
+        h, building height [m].
+    n_strips : int
+        Number of equal horizontal strips, >= 1.
+
+    Returns
+    -------
+    midpoints : numpy.ndarray
+        Height of each strip's midpoint [m].
+    lengths : numpy.ndarray
+        Each strip's height dz = h / n [m].
+
+    Raises
+    ------
+    ValueError
+        If ``n_strips`` is not an integer >= 1.
+    """
     if not (isinstance(n_strips, int) and n_strips >= 1):
         raise ValueError(f"n_strips = {n_strips!r}; must be an integer >= 1")
     edges = np.linspace(0.0, height_m, n_strips + 1)
@@ -229,6 +289,11 @@ def lateral_mean_coherence(vertical_decay, lateral_decay):
         A = f C_z dz / U for the two lines' vertical separation dz [-].
     lateral_decay : array
         Q = f C_y b / U for the breadth b [-].
+
+    Returns
+    -------
+    numpy.ndarray
+        L(A, Q) [-], in (0, 1], broadcast over the arguments.
 
     Notes
     -----
@@ -256,6 +321,11 @@ def pair_mean_exponential(midpoint_decay, half_length_decay):
     half_length_decay : array
         u = a dz / 2 [-].
 
+    Returns
+    -------
+    numpy.ndarray
+        The mean [-], in (0, 1], broadcast over the arguments.
+
     Notes
     -----
     Exact: exp(-a d) (sinh u / u)^2, written as
@@ -278,11 +348,20 @@ def strip_self_coherence(vertical_decay, lateral_decay):
     lateral_decay : array
         Q = f C_y b / U [-].
 
+    Returns
+    -------
+    numpy.ndarray
+        The mean root-coherence [-], in (0, 1], broadcast over the arguments.
+
     Notes
     -----
     int_0^1 2 (1 - s) L(p s, Q) ds with L from :func:`lateral_mean_coherence`
     (16 Gauss-Legendre points in s). For Q = 0 this is exactly EN 1991-1-4
     eq. B.7 at eta = p / 2, which is used then.
+
+    References
+    ----------
+    EN 1991-1-4:2005, Annex B, eq. B.7 (the case Q = 0).
     """
     p = np.asarray(vertical_decay, dtype=float)
     q = np.asarray(lateral_decay, dtype=float)
@@ -424,7 +503,9 @@ def modal_force_spectrum(site, building, return_period_years=50.0, *, spectrum="
     Parameters
     ----------
     site : tmd.wind.Site
+        The wind climate and terrain at the building.
     building : Building
+        The building: height, breadth, mass and mode shape over height.
     return_period_years : float
         T [years] of the mean wind speed.
     spectrum : str
@@ -505,7 +586,9 @@ def modal_force_spectra(site, building, return_periods_years, *, reference_perio
     Parameters
     ----------
     site : tmd.wind.Site
+        The wind climate and terrain at the building.
     building : Building
+        The building: height, breadth, mass and mode shape over height.
     return_periods_years : sequence of float
         T [years] of each spectrum wanted.
     reference_period_years : float, optional
@@ -571,7 +654,20 @@ def modal_force_spectra(site, building, return_periods_years, *, reference_perio
 
 def reference_wind_spectrum(site, building, return_period_years=50.0, *, spectrum="eurocode",
                             frequency_hz=None):
-    """Turbulence PSD at the EN reference height z_s, for plotting.
+    """Return the turbulence PSD at the EN reference height z_s, for plotting.
+
+    Parameters
+    ----------
+    site : tmd.wind.Site
+        The wind climate and terrain at the building.
+    building : Building
+        The building (its height sets z_s).
+    return_period_years : float
+        T, return period of the mean wind [years].
+    spectrum : str
+        The turbulence model (:data:`tmd.wind.turbulence.SPECTRUM_MODELS`).
+    frequency_hz : array, optional
+        Where to evaluate [Hz]; a default log grid otherwise.
 
     Returns
     -------
@@ -604,6 +700,15 @@ def aerodynamic_log_decrement(force_coefficient, air_density_kg_m3, breadth_m, m
     Notes
     -----
     delta_a = c_f rho b v_m(z_s) / (2 n_1 m_e).
+
+    Returns
+    -------
+    numpy.ndarray
+        delta_a [-], broadcast over ``mean_speed`` and ``frequency_hz``.
+
+    References
+    ----------
+    EN 1991-1-4:2005+A1:2010, Annex F, F.5, eq. F.18.
     """
     return (force_coefficient * air_density_kg_m3 * breadth_m * np.asarray(mean_speed, float)
             / (2.0 * np.asarray(frequency_hz, float) * equivalent_mass_per_length))
@@ -616,7 +721,9 @@ def aerodynamic_damping_ratio(site, building, modal_mass_kg, frequency_hz,
     Parameters
     ----------
     site : tmd.wind.Site
+        The wind climate and terrain at the building.
     building : Building
+        The building: height, breadth, mass and mode shape over height.
     modal_mass_kg : float
         M* [kg], mode shape 1 at the damper (used for m_e unless the building
         gives ``mass_per_length_kg_m``).
@@ -628,6 +735,15 @@ def aerodynamic_damping_ratio(site, building, modal_mass_kg, frequency_hz,
     Notes
     -----
     EN 1991-1-4 eq. F.18 with v_m at z_s = 0.6 h; scales as 1/n_1.
+
+    Returns
+    -------
+    float or numpy.ndarray
+        zeta_a [-], referred to the mode's frequency.
+
+    References
+    ----------
+    EN 1991-1-4:2005+A1:2010, Annex F, F.5, eq. F.18.
     """
     m_e = building.equivalent_mass_per_length(modal_mass_kg)
     speed = site.mean_speed(reference_height(site, building), return_period_years)
