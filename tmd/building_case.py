@@ -82,6 +82,8 @@ class _Table(BaseModel):
 
 
 class ModesEntry(_Table):
+    """One ``[[modes]]`` entry of a building case: a mode and its shape (keys in README)."""
+
     name: str = ""
     frequency_hz: Positive
     damping_ratio: Ratio
@@ -95,6 +97,8 @@ class ModesEntry(_Table):
 
 
 class PlanTable(_Table):
+    """The ``[plan]`` table of a building case: the floor plan (keys in README)."""
+
     height_m: Positive
     x_min_m: Finite
     x_max_m: Finite
@@ -107,12 +111,16 @@ class PlanTable(_Table):
 
 
 class PointEntry(_Table):
+    """One ``[[points]]`` entry: a point where accelerations are judged (keys in README)."""
+
     name: str
     x_m: Finite
     y_m: Finite
 
 
 class DamperEntry(_Table):
+    """One ``[[dampers]]`` entry: position, directions, mass share (keys in README)."""
+
     name: str = ""
     x_m: Finite
     y_m: Finite
@@ -123,16 +131,22 @@ class DamperEntry(_Table):
 
 
 class CrossEntry(_Table):
+    """One ``[[modal_loads.cross]]`` entry: two modes' cross-spectrum (keys in README)."""
+
     modes: list[int]
     csv: str
 
 
 class ModalLoadsTable(_Table):
+    """The ``[modal_loads]`` table: tabulated modal force spectra (keys in README)."""
+
     force_psd_csv: list[str]
     cross: list[CrossEntry] = []
 
 
 class DirectionEntry(_Table):
+    """One ``[[wind_directions]]`` entry: a wind sector (keys in README)."""
+
     name: str = ""
     direction_deg: Finite
     breadth_m: Positive
@@ -144,12 +158,16 @@ class DirectionEntry(_Table):
 
 
 class BuildingTargetTable(_Table):
+    """The ``[target]`` table of a whole-building case (keys in README)."""
+
     peak_acceleration_m_s2: Positive
     duration_s: Positive = 600.0
     return_period_years: Positive | None = None
 
 
 class SizingTable(_Table):
+    """The ``[sizing]`` table of a whole-building case (keys in README)."""
+
     max_mass_kg: Positive
 
 
@@ -160,6 +178,8 @@ class MassTable(_Table):
 
 
 class BuildingCaseTable(_Table):
+    """A whole-building case file, table by table, as validated (keys in README)."""
+
     name: str
     description: str = ""
     modes: list[ModesEntry]
@@ -545,9 +565,12 @@ def _wind_notes(entries: list[DirectionEntry], directions: list[dict], problems:
 
 
 def _check_sector_probabilities(path: Path, directions: list[DirectionEntry]) -> None:
-    """A directional result needs a probability for every sector or for none, adding up to
-    at most 1, and never together with a c_dir below 1 (that would count the direction
-    twice)."""
+    """Check the sectors' probabilities against the case file's rules.
+
+    A directional result needs a probability for every sector or for none,
+    adding up to at most 1, and never together with a c_dir below 1 (that
+    would count the direction twice).
+    """
     given = [d.probability is not None for d in directions]
     if any(given) and not all(given):
         missing = given.index(False) + 1
@@ -565,7 +588,7 @@ def _check_sector_probabilities(path: Path, directions: list[DirectionEntry]) ->
 
 
 def _site(path: Path, w: WindTable, c_dir: float) -> Site:
-    """The site with the sector's directional factor on its speed (EN 1991-1-4 4.2)."""
+    """Return the site with the sector's directional factor on its speed (EN 1991-1-4 4.2)."""
     try:
         return Site(terrain=w.terrain,
                     basic_speed_m_s=None if w.basic_speed_m_s is None

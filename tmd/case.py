@@ -75,7 +75,7 @@ class CaseError(InputError):
 
 
 def _capped(high: float) -> object:
-    """A finite number > 0 and <= ``high``: caps far beyond any building keep overflow out."""
+    """Return a type of finite number > 0 and <= ``high`` (caps keep overflow out)."""
     return Annotated[float, Field(gt=0, le=high, strict=True, allow_inf_nan=False)]
 
 
@@ -85,12 +85,16 @@ class _Table(BaseModel):
 
 
 class ModeTable(_Table):
+    """The case file's ``[mode]`` table: the structural mode (keys in README)."""
+
     frequency_hz: ModeFrequency
     modal_mass_kg: _capped(1e12)
     damping_ratio: StructuralDamping
 
 
 class LoadTable(_Table):
+    """The case file's ``[load]`` table: a force spectrum CSV (keys in README)."""
+
     force_psd_csv: str | None = None
     normalised_force_psd_csv: str | None = None
     normalised_quantity: Literal["generalised-force", "base-moment"] = "generalised-force"
@@ -107,6 +111,8 @@ class LoadTable(_Table):
 
 
 class TargetTable(_Table):
+    """The case file's ``[target]`` table: the peak target (keys in README)."""
+
     peak_acceleration_m_s2: _capped(10.0)
     duration_s: Duration = defaults.DURATION_S
     return_period_years: ReturnPeriod | None = None
@@ -123,6 +129,8 @@ class TargetTable(_Table):
 
 
 class DamperTable(_Table):
+    """The case file's ``[damper]`` table: mass ratio, stroke limit (keys in README)."""
+
     objective: Literal[OBJECTIVES] = "acceleration"  # type: ignore[valid-type]
     mass_ratio: Ratio | None = None
     max_mass_ratio: Ratio = defaults.MAX_MASS_RATIO
@@ -138,6 +146,8 @@ class DamperTable(_Table):
 
 
 class BuildingTable(_Table):
+    """The case file's ``[building]`` table: geometry, drag, mode shape (keys in README)."""
+
     height_m: Positive
     breadth_m: _capped(500.0)
     depth_m: _capped(500.0)
@@ -149,6 +159,8 @@ class BuildingTable(_Table):
 
 
 class WindTable(_Table):
+    """The case file's ``[wind]`` table: site, profile, spectrum (keys in README)."""
+
     terrain: Literal[tuple(TERRAIN_CATEGORIES)] | None = None  # type: ignore[valid-type]
     basic_speed_m_s: Speed | None = None
     reference_height_m: Positive | None = None
@@ -179,6 +191,8 @@ class WindTable(_Table):
 
 
 class ProbabilisticTable(_Table):
+    """The case file's ``[robustness.probabilistic]`` table (keys in README)."""
+
     frequency_cov: Ratio
     damping_cov: Annotated[float, Field(ge=0, lt=1, allow_inf_nan=False)] = 0.0
     distribution: Literal["normal", "lognormal"] = "lognormal"
@@ -188,6 +202,8 @@ class ProbabilisticTable(_Table):
 
 
 class RobustnessTable(_Table):
+    """The case file's ``[robustness]`` table: band and sweeps (keys in README)."""
+
     frequency_band: Band = defaults.FREQUENCY_BAND
     robust_design: bool = True
     sweep_range: Annotated[float, Field(gt=0, lt=0.6, allow_inf_nan=False)] = defaults.SWEEP_RANGE
@@ -195,6 +211,8 @@ class RobustnessTable(_Table):
 
 
 class OptionsTable(_Table):
+    """The case file's ``[options]`` table and its sub-tables (keys in README)."""
+
     viscous: ViscousOptionsTable = ViscousOptionsTable()
     pendulum: PendulumOptionsTable = PendulumOptionsTable()
     tmd_bank: TmdBankOptionsTable = TmdBankOptionsTable()
@@ -213,6 +231,8 @@ class SimulationTable(_Table):
 
 
 class CaseTable(_Table):
+    """A whole one-mode case file, table by table, as validated (keys in README)."""
+
     name: str
     description: str = ""
     mode: ModeTable
@@ -260,7 +280,23 @@ class CaseTable(_Table):
 
 @dataclass(frozen=True)
 class DamperSettings:
-    """How the damper is to be sized (see the README's [damper] keys)."""
+    """How the damper is to be sized (see the README's [damper] keys).
+
+    Parameters
+    ----------
+    objective : str
+        The response the fixed-mass tuning minimises: "acceleration" or
+        "displacement".
+    mass_ratio : float or None
+        A fixed mass ratio m_d / M* [-]; None sizes the least mass.
+    max_mass_ratio : float
+        Largest mass ratio the least-mass search may use [-].
+    max_stroke_m : float or None
+        Peak stroke limit relative to the structure [m]; None for no limit.
+    stroke_return_period_years : float or None
+        Return period of the wind at which the stroke limit is held [years];
+        None: the target's return period.
+    """
 
     objective: str
     mass_ratio: float | None
@@ -277,6 +313,50 @@ class Case:
     return period for a wind case); ``wind_loads`` holds every listed return
     period of a wind case (empty for a CSV load). ``shape_factor`` is the
     mode shape at the evaluation height (1 for a CSV load).
+
+    Parameters
+    ----------
+    name : str
+        The case's name.
+    path : Path
+        The case file.
+    mode : Mode
+        The structural mode: frequency [Hz], modal mass M* [kg] (mode shape
+        = 1 at the damper) and structural damping ratio [-].
+    spectrum : ForceSpectrum
+        One-sided modal force PSD of the design load [N^2/Hz].
+    target_peak_m_s2 : float
+        Peak acceleration target at the evaluation height [m/s^2].
+    duration_s : float
+        Averaging duration T of the peak factors [s].
+    damper : DamperSettings
+        How the damper is to be sized.
+    description : str
+        Free text from the case file.
+    inputs : dict
+        The case file's tables as read, for results.json.
+    input_files : tuple of Path
+        Every file the case reads (case, spectra, profile tables).
+    site : Site or None
+        The wind climate and terrain (wind cases).
+    building : Building or None
+        The building's geometry, drag and mode shape (wind cases).
+    wind_loads : tuple of WindLoad
+        One modal force spectrum per listed return period (wind cases).
+    target_return_period_years : float or None
+        Return period of the wind the target applies to [years].
+    wind_settings : dict
+        The [wind] table's model choices (spectrum, coherence, strips).
+    tables : CaseTable or None
+        The validated tables themselves.
+    notes : tuple of str
+        Warnings about unusual inputs, shown with the results.
+    direction_of_response : str
+        "along" or "across": which wind load drives the mode.
+    across_wind : dict or None
+        The across-wind model and vortex check (wind cases).
+    across_notes : tuple of str
+        The across-wind model's own warnings and cautions.
     """
 
     name: str
@@ -302,10 +382,12 @@ class Case:
 
     @property
     def shape_factor(self) -> float:
+        """Mode shape phi(z_eval) at the evaluation height [-] (1 for a CSV load)."""
         return self.building.evaluation_mode_value if self.building else 1.0
 
     @property
     def design_wind_load(self) -> WindLoad | None:
+        """The wind load of the target's return period (None for a CSV load)."""
         for load in self.wind_loads:
             if load.return_period_years == self.target_return_period_years:
                 return load
@@ -313,7 +395,7 @@ class Case:
 
 
 def is_building_case(path: str | Path) -> bool:
-    """True when the file is readable TOML with ``[[modes]]`` (a whole-building case).
+    """Tell whether the file is readable TOML with ``[[modes]]`` (a whole-building case).
 
     It lives here rather than in :mod:`tmd.building_case` so that the CLI can
     ask it without importing the building stack (and with it scipy).
@@ -337,6 +419,16 @@ def is_building_case(path: str | Path) -> bool:
 
 def read_case(path: str | Path) -> Case:
     """Read and validate a case file.
+
+    Parameters
+    ----------
+    path : str or Path
+        The case file (TOML, UTF-8).
+
+    Returns
+    -------
+    Case
+        The validated case, its wind loads computed for every return period.
 
     Raises
     ------
@@ -408,7 +500,7 @@ def _wind_case(path: Path, table: CaseTable, mode: Mode, common: dict) -> Case:
 
 
 def _normalised_case(path: Path, table: CaseTable, mode: Mode, common: dict) -> Case:
-    """A [load] normalised spectrum turned dimensional at each return period's top speed."""
+    """Return a [load] normalised spectrum turned dimensional at each return period's top speed."""
     load, w = table.load, table.wind
     csv_path = (path.parent / load.normalised_force_psd_csv).resolve()
     try:

@@ -31,11 +31,12 @@ from tmd.rules import Ratio, unique_list
 DEFAULT_VISCOUS_DEFORMATION = 0.03
 
 def _number(**bounds) -> object:
-    """A strict finite float within ``bounds`` (pydantic's gt/ge/lt/le)."""
+    """Return the type of a strict finite float within ``bounds`` (pydantic's gt/ge/lt/le)."""
     return Annotated[float, Field(strict=True, allow_inf_nan=False, **bounds)]
 
 
 def _count(low: int, high: int) -> object:
+    """Return a strict integer type within [low, high] (pydantic)."""
     return Annotated[int, Field(ge=low, le=high, strict=True)]
 
 
@@ -44,12 +45,14 @@ class _OptionTable(BaseModel):
     model_config = ConfigDict(extra="forbid", frozen=True, strict=True)
 
     def _given(self) -> dict:
-        """The keys the case gave, lists as tuples (the dataclasses are frozen)."""
+        """Return the keys the case gave, lists as tuples (the dataclasses are frozen)."""
         return {k: tuple(v) if isinstance(v, list) else v
                 for k, v in self.model_dump(exclude_unset=True).items()}
 
 
 class ViscousOptionsTable(_OptionTable):
+    """The case file's ``[options.viscous]`` table (keys in README)."""
+
     damper_count: _count(1, 10_000) = 1
     deformation_per_modal_displacement: _number(gt=0, le=10.0) | None = None
     storey_drift_per_modal_displacement: _number(gt=0, le=1.0) | None = None
@@ -80,7 +83,13 @@ class ViscousOptionsTable(_OptionTable):
         return DEFAULT_VISCOUS_DEFORMATION
 
     def settings(self):
-        """The installation, :class:`tmd.sizing.viscous.ViscousSettings`."""
+        """Return the installation as :class:`tmd.sizing.viscous.ViscousSettings`.
+
+        Returns
+        -------
+        tmd.sizing.viscous.ViscousSettings
+            Deformation per modal displacement [-], damper count and capacities.
+        """
         from tmd.sizing.viscous import ViscousSettings
 
         return ViscousSettings(self.deformation, self.damper_count, self.force_capacity_n,
@@ -88,14 +97,24 @@ class ViscousOptionsTable(_OptionTable):
 
 
 class PendulumOptionsTable(_OptionTable):
+    """The case file's ``[options.pendulum]`` table (keys in README)."""
+
     stages: _count(1, 10) = 1
 
     def settings(self) -> PendulumSettings:
-        """:class:`tmd.dampers.pendulum.PendulumSettings`."""
+        """Return the table as :class:`tmd.dampers.pendulum.PendulumSettings`.
+
+        Returns
+        -------
+        tmd.dampers.pendulum.PendulumSettings
+            The number of stages; the dataclass default where not given.
+        """
         return PendulumSettings(**self._given())
 
 
 class TmdBankOptionsTable(_OptionTable):
+    """The case file's ``[options.tmd_bank]`` table (keys in README)."""
+
     # Candidate tunings f_j / f_s (the single-TMD tuning searches 0.5 to 1.5); at most
     # 20 x 10 = 200 candidates: the convex step grows with their number. A key left
     # out (None) keeps BankSettings' default.
@@ -115,13 +134,21 @@ class TmdBankOptionsTable(_OptionTable):
         return self
 
     def settings(self):
-        """:class:`tmd.sizing.bank.BankSettings` (candidate grid, scenarios, iteration)."""
+        """Return the table as :class:`tmd.sizing.bank.BankSettings`.
+
+        Returns
+        -------
+        tmd.sizing.bank.BankSettings
+            Candidate grid, scenarios and iteration; defaults where not given.
+        """
         from tmd.sizing.bank import BankSettings
 
         return BankSettings(**self._given())
 
 
 class LiquidColumnOptionsTable(_OptionTable):
+    """The case file's ``[options.liquid_column]`` table (keys in README)."""
+
     length_ratio: Ratio = ColumnSettings.length_ratio
     columns: _count(1, 100) = ColumnSettings.columns
     max_excursion_ratio: _number(gt=0, le=1.0) = ColumnSettings.max_excursion_ratio
@@ -132,11 +159,19 @@ class LiquidColumnOptionsTable(_OptionTable):
     freeboard_m: _number(gt=0, le=20.0) | None = None
 
     def settings(self) -> ColumnSettings:
-        """:class:`tmd.dampers.liquid_column.ColumnSettings`."""
+        """Return the table as :class:`tmd.dampers.liquid_column.ColumnSettings`.
+
+        Returns
+        -------
+        tmd.dampers.liquid_column.ColumnSettings
+            Length ratio, columns, excursion limit and density.
+        """
         return ColumnSettings(**self._given())
 
 
 class SloshingTankOptionsTable(_OptionTable):
+    """The case file's ``[options.sloshing_tank]`` table (keys in README)."""
+
     depth_ratio: _number(gt=0, le=1.0) = TankSettings.depth_ratio
     max_tank_width_m: _number(gt=0, le=100.0) = TankSettings.max_tank_width_m
     freeboard_m: _number(gt=0, le=20.0) = TankSettings.freeboard_m
@@ -146,5 +181,11 @@ class SloshingTankOptionsTable(_OptionTable):
     kinematic_viscosity_m2_s: _number(gt=0, le=1e-2) = TankSettings.kinematic_viscosity_m2_s
 
     def settings(self) -> TankSettings:
-        """:class:`tmd.dampers.sloshing.TankSettings`."""
+        """Return the table as :class:`tmd.dampers.sloshing.TankSettings`.
+
+        Returns
+        -------
+        tmd.dampers.sloshing.TankSettings
+            Depth ratio, tank width, freeboard, screens and water properties.
+        """
         return TankSettings(**self._given())
