@@ -152,8 +152,10 @@ def strip_cross_spectrum(site, modes: tuple[BuildingMode, ...], *, height_m: flo
 
 
 def _across(travel) -> np.ndarray:
-    """The plan unit vector across the wind: the travel direction turned a quarter turn
-    anticlockwise."""
+    """Return the plan unit vector across the wind (the travel direction turned anticlockwise).
+
+    The quarter turn is anticlockwise in plan.
+    """
     return np.array([-travel[1], travel[0]])
 
 
@@ -227,7 +229,7 @@ def across_wind_corrections(modes: tuple[BuildingMode, ...], height_m: float,
 def across_wind_problems(site, modes: tuple[BuildingMode, ...], *, height_m: float,
                          breadth_m: float, depth_m: float, travel: np.ndarray,
                          return_period_years: float) -> list[str]:
-    """Inputs outside the across-wind model's range for one wind direction (empty if none).
+    """Return the inputs outside the across-wind model's range for one wind direction.
 
     Parameters
     ----------

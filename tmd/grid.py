@@ -319,7 +319,7 @@ def _tail_edges(edge, f_min, f_max):
 
 
 def _split_grid(c, h, edges, f_min, f_max, cuts, n):
-    """The panels of :func:`pole_grid`, cut at ``cuts``, n nodes on every piece.
+    """Return the panels of :func:`pole_grid`, cut at ``cuts``, n nodes on every piece.
 
     Panels in increasing order: one linear [f_min, far], the lower log
     panels, the pole panels, the upper log panels, then [far, f_max] (log,

@@ -43,7 +43,7 @@ class NormalisedFileError(ValueError):
 
 def reference_force(top_mean_speed_m_s, *, breadth_m, height_m, air_density_kg_m3=1.25,
                     quantity="generalised-force"):
-    """The normaliser q_H b H (force) or q_H b H^2 (base moment) [N] or [N m].
+    """Return the normaliser q_H b H (force) or q_H b H^2 (base moment) [N] or [N m].
 
     Parameters
     ----------
@@ -168,7 +168,7 @@ class NormalisedSpectrum:
         object.__setattr__(self, "normalised_psd", phi)
 
     def rms_coefficient(self) -> float:
-        """rms force or moment coefficient: sqrt of the integral of Phi over ln n [-].
+        """Return the rms force or moment coefficient: sqrt of the integral of Phi over ln n [-].
 
         Returns
         -------
@@ -186,7 +186,7 @@ class NormalisedSpectrum:
 
     def modal_force_spectrum(self, *, top_mean_speed_m_s, building, air_density_kg_m3=1.25,
                              label="") -> TabulatedSpectrum:
-        """The dimensional modal force spectrum at a top speed [N^2/Hz].
+        """Return the dimensional modal force spectrum at a top speed [N^2/Hz].
 
         Parameters
         ----------
@@ -219,7 +219,7 @@ class NormalisedSpectrum:
 
 
 def normalised_table_problem(n, phi, *, first_row=1, row_word="row") -> str:
-    """What is wrong with a normalised table, or '' if nothing.
+    """Return what is wrong with a normalised table, or '' if nothing.
 
     Parameters
     ----------

@@ -35,7 +35,7 @@ RULE = ("the least mass that meets the target across the frequency band where [r
 
 def recommendation(result: dict, *, bare_band_max_m_s2: float | None = None,
                    frequency_band: float | None = None) -> dict:
-    """The ``recommended`` block of a design job's results.
+    """Return the ``recommended`` block of a design job's results.
 
     Parameters
     ----------

@@ -71,7 +71,7 @@ class CorrectionStep:
 
 def simulated_peak(load: LoadedMode, design: TmdDesign | None, settings: SimulationSettings,
                    period_s: float, fractile: float | None = None) -> float:
-    """The simulated statistic of max |a| over T at the evaluation height [m/s^2].
+    """Return the simulated statistic of max |a| over T at the evaluation height [m/s^2].
 
     Parameters
     ----------
@@ -102,7 +102,7 @@ def simulated_peak(load: LoadedMode, design: TmdDesign | None, settings: Simulat
 
 
 def common_period_s(load: LoadedMode, design: TmdDesign | None, duration_s: float) -> float:
-    """A force-record period that resolves the bare mode and the first design [s].
+    """Return a force-record period that resolves the bare mode and the first design [s].
 
     Parameters
     ----------
@@ -194,7 +194,7 @@ def size_for_simulated_peak(load: LoadedMode, target_m_s2: float,
 
 def _simulated_sizing(sizing: Sizing, last: CorrectionStep, target_m_s2: float,
                       fractile) -> Sizing:
-    """The final sizing with its peak and verdict taken from the simulation."""
+    """Return the final sizing with its peak and verdict taken from the simulation."""
     meets = last.simulated_peak_m_s2 <= target_m_s2
     statistic = "mean" if fractile is None else f"{100 * fractile:g}% fractile"
     verdict = "meets" if meets else "does not meet"

@@ -55,7 +55,7 @@ def compute_wind_loads(site: Site, building: Building, mode: Mode, periods_years
                        aerodynamic_damping: bool, direction_of_response: str = "along",
                        air_density_kg_m3: float | None = None,
                        reference_period_years: float | None = None) -> tuple[WindLoad, ...]:
-    """The wind load of every return period, in the order given.
+    """Return the wind load of every return period, in the order given.
 
     Parameters
     ----------

@@ -38,7 +38,7 @@ AirDensity = Annotated[float, Field(ge=0.9, le=1.5, strict=True, allow_inf_nan=F
 
 
 def load_table_problem(table) -> str:
-    """What is inconsistent in a [load] table ('' if nothing).
+    """Return what is inconsistent in a [load] table ('' if nothing).
 
     Parameters
     ----------
@@ -66,7 +66,7 @@ def load_table_problem(table) -> str:
 
 
 def normalised_case_problem(table) -> str:
-    """What a case with a [load] normalised spectrum lacks or has too much of ('' if nothing).
+    """Return what a case with a [load] normalised spectrum lacks or has too much of.
 
     Parameters
     ----------
@@ -99,7 +99,7 @@ def normalised_case_problem(table) -> str:
 
 
 def wind_table_problem(table) -> str:
-    """What is inconsistent in a [wind] table's profile and direction keys ('' if nothing).
+    """Return what is inconsistent in a [wind] table's profile and direction keys ('' if nothing).
 
     Parameters
     ----------
@@ -162,7 +162,7 @@ def tall_building_message(height_m: float) -> str:
 
 
 def make_site(settings: dict, height_m: float, case_dir: Path):
-    """The site's wind profile from the [wind] settings.
+    """Return the site's wind profile from the [wind] settings.
 
     Parameters
     ----------
@@ -210,7 +210,7 @@ def make_site(settings: dict, height_m: float, case_dir: Path):
 
 def across_wind_spectrum(building, top_mean_speed_m_s: float, air_density_kg_m3: float,
                          return_period_years: float) -> TabulatedSpectrum:
-    """The across-wind modal force spectrum of the building's mode, tabulated [N^2/Hz].
+    """Return the across-wind modal force spectrum of the building's mode, tabulated [N^2/Hz].
 
     Parameters
     ----------
@@ -347,7 +347,7 @@ def vortex_block(building, mode_frequency_hz: float, periods, top_speeds,
 
 def across_wind_block(building, mode_frequency_hz: float, periods, top_speeds,
                       speed_of=None) -> tuple[dict, list[str]]:
-    """The across-wind model's inputs, its range check and the vortex check.
+    """Return the across-wind model's inputs, its range check and the vortex check.
 
     Parameters
     ----------

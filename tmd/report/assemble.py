@@ -59,7 +59,7 @@ CONVENTIONS = (
 
 
 def comfort_caption(shown, hidden, responses) -> str:
-    """What the comfort chart draws: which responses, which limits, which have no limit.
+    """Return what the comfort chart draws: which responses, which limits, which have no limit.
 
     Parameters
     ----------
@@ -97,7 +97,7 @@ def comfort_caption(shown, hidden, responses) -> str:
 def render_report(case: Case, results: dict, *, dpi: int = 150,
                   wind_spectrum: tuple | None = None,
                   on_step: StepCallback = quiet_step) -> dict[str, bytes]:
-    """The HTML report, its figures (PNG) and key tables (CSV) for one job's results.
+    """Return the HTML report, its figures (PNG) and key tables (CSV) for one job's results.
 
     Parameters
     ----------

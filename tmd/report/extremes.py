@@ -17,7 +17,7 @@ END_STOP_KEYS = ("travel_m", "travel_basis", "extreme_return_period_years",
 
 
 def end_stop_tables(block: dict, path: str = "end_stops", title: str = "") -> list[Table]:
-    """The end-stop specification and its figures per return period.
+    """Return the end-stop specification and its figures per return period.
 
     Parameters
     ----------
@@ -68,7 +68,7 @@ RECOMMENDED_KEYS = ("design_key", "mass_kg", "mass_ratio", "frequency_hz", "freq
 
 
 def recommendation_blocks(block: dict, keep) -> list:
-    """The report's first-section statement of the recommended specification.
+    """Return the report's first-section statement of the recommended specification.
 
     Parameters
     ----------

@@ -39,7 +39,7 @@ HEADROOM = 1.12  # data tops sit below the frame, so markers are not cut by it
 
 def new_axes(*, twin: bool = False, legend_rows: int = 0, plot_height_in: float = PLOT_HEIGHT_IN,
              left_in: float = LEFT_IN):
-    """A fresh Axes on its own Figure, placed by fixed margins (no layout engine).
+    """Return a fresh Axes on its own Figure, placed by fixed margins (no layout engine).
 
     Parameters
     ----------
@@ -93,7 +93,7 @@ def _rows(entries: int, columns: int) -> int:
 
 
 def _legend_below(ax, handles, columns: int = 2) -> None:
-    """The legend in the band reserved under the x-axis label (see :func:`new_axes`)."""
+    """Return the legend in the band reserved under the x-axis label (see :func:`new_axes`)."""
     height_in = ax.get_position().height * ax.figure.get_figheight()
     ax.legend(handles=handles, fontsize=FONT_PT - 1, frameon=False, ncols=columns,
               loc="upper center", bbox_to_anchor=(0.5, -(BOTTOM_IN - 0.04) / height_in),
@@ -101,7 +101,7 @@ def _legend_below(ax, handles, columns: int = 2) -> None:
 
 
 def plain_number(value: float) -> str:
-    """A tick label as plain text (no mathtext): 0.05, 2, 300, 1e5, 2e-6.
+    """Return a tick label as plain text (no mathtext): 0.05, 2, 300, 1e5, 2e-6.
 
     Parameters
     ----------
@@ -127,6 +127,7 @@ class PlainLogFormatter(Formatter):
     """
 
     def __call__(self, x, pos=None):
+        """Return the label of the tick at ``x`` ('' for a tick left unlabelled)."""
         if not x > 0:
             return ""
         leading = round(x / 10.0 ** np.floor(np.log10(x)), 6)
@@ -498,7 +499,7 @@ def _option_label(name: str, mass_ratio) -> str:
 
 
 def png_bytes(ax, dpi: int = 150) -> bytes:
-    """The Axes' figure as PNG bytes (no software tag, so no URL in the file).
+    """Return the Axes' figure as PNG bytes (no software tag, so no URL in the file).
 
     Parameters
     ----------

@@ -29,7 +29,17 @@ MIN_MASS_RATIO = 0.002
 
 @dataclass(frozen=True)
 class ResponseCurves:
-    """Bare and damped curves on one frequency grid (damped is None without a damper)."""
+    """Bare and damped curves on one frequency grid (damped is None without a damper).
+
+    Parameters
+    ----------
+    frequency_hz : numpy.ndarray
+        The grid [Hz].
+    bare : numpy.ndarray
+        The bare building's curve on it [unit of the figure].
+    damped : numpy.ndarray or None
+        The damped building's curve [same unit]; None without a damper.
+    """
 
     frequency_hz: np.ndarray
     bare: np.ndarray
@@ -38,7 +48,17 @@ class ResponseCurves:
 
 @dataclass(frozen=True)
 class MassRatioStudy:
-    """Best-tuned TMDs over a range of mass ratios (same objective and stroke limit as the case)."""
+    """Best-tuned TMDs over a range of mass ratios (same objective and stroke limit as the case).
+
+    Parameters
+    ----------
+    mass_ratio : numpy.ndarray
+        m_d / M* of each TMD [-].
+    peak_acceleration_m_s2 : numpy.ndarray
+        Its peak acceleration at the evaluation height [m/s^2].
+    peak_stroke_m : numpy.ndarray
+        Its peak stroke relative to the structure [m].
+    """
 
     mass_ratio: np.ndarray
     peak_acceleration_m_s2: np.ndarray
@@ -47,7 +67,15 @@ class MassRatioStudy:
 
 @dataclass(frozen=True)
 class Sweep:
-    """Peak acceleration against the structure frequency factor s (f_s -> s f_s)."""
+    """Peak acceleration against the structure frequency factor s (f_s -> s f_s).
+
+    Parameters
+    ----------
+    structure_frequency_factor : numpy.ndarray
+        s [-], increasing.
+    peak_acceleration_m_s2 : numpy.ndarray
+        Peak acceleration at the evaluation height at each s [m/s^2].
+    """
 
     structure_frequency_factor: np.ndarray
     peak_acceleration_m_s2: np.ndarray
@@ -55,7 +83,19 @@ class Sweep:
 
 @dataclass(frozen=True)
 class ComfortResponse:
-    """Peak accelerations of one return period at the building frequency."""
+    """Peak accelerations of one return period at the building frequency.
+
+    Parameters
+    ----------
+    return_period_years : float or None
+        Return period of the wind [years]; None when the case states none.
+    frequency_hz : float
+        The building's natural frequency [Hz], where comfort limits are read.
+    bare_peak_m_s2 : float
+        Peak acceleration of the bare building [m/s^2].
+    damped_peak_m_s2 : float or None
+        Peak acceleration with the damper [m/s^2]; None without one.
+    """
 
     return_period_years: float | None
     frequency_hz: float
@@ -64,19 +104,48 @@ class ComfortResponse:
 
 
 def damper_of(design: dict) -> TunedMassDamper:
-    """The TMD of a results.json ``design`` block."""
+    """Return the TMD of a results.json ``design`` block.
+
+    Parameters
+    ----------
+    design : dict
+        The block (``mass_ratio``, ``frequency_ratio``, ``damping_ratio``).
+
+    Returns
+    -------
+    TunedMassDamper
+        The damper relative to its mode.
+    """
     return TunedMassDamper(design["mass_ratio"], design["frequency_ratio"],
                            design["damping_ratio"])
 
 
 def response_frequencies(structure_frequency_hz: float) -> np.ndarray:
-    """Log-spaced grid around the mode for the response figures [Hz]."""
+    """Return the log-spaced grid around the mode for the response figures [Hz].
+
+    Parameters
+    ----------
+    structure_frequency_hz : float
+        f_s, the mode's natural frequency [Hz].
+
+    Returns
+    -------
+    numpy.ndarray
+        2001 frequencies from f_s / 3 to 3 f_s [Hz].
+    """
     return np.geomspace(structure_frequency_hz / RESPONSE_SPAN,
                         structure_frequency_hz * RESPONSE_SPAN, RESPONSE_POINTS)
 
 
 def force_spectrum_curve(load: LoadedMode) -> tuple[np.ndarray, np.ndarray]:
-    """The modal force PSD S_F(f) [N^2/Hz] over its table, or its support (or f_s/100 .. 100 f_s).
+    """Return the modal force PSD S_F(f) [N^2/Hz] over its table, or its support.
+
+    The support stands in for f_s/100 .. 100 f_s where it is unbounded.
+
+    Parameters
+    ----------
+    load : LoadedMode
+        The case's mode under its design load (:func:`tmd.jobs.loaded_mode_of`).
 
     Returns
     -------
@@ -104,7 +173,20 @@ def _acceleration_transfer(load: LoadedMode, design: dict | None, f: np.ndarray)
 
 
 def acceleration_frequency_response(load: LoadedMode, design: dict | None) -> ResponseCurves:
-    """|H_a(f)| [m/s^2 per N] at the evaluation height, bare and damped.
+    """Return |H_a(f)| [m/s^2 per N] at the evaluation height, bare and damped.
+
+    Parameters
+    ----------
+    load : LoadedMode
+        The case's mode under its design load (:func:`tmd.jobs.loaded_mode_of`).
+    design : dict or None
+        The results.json ``design`` block (mass ratio, frequency ratio, damping
+        ratio); None for the bare building only.
+
+    Returns
+    -------
+    ResponseCurves
+        On :func:`response_frequencies` [Hz], the magnitudes [m/s^2 per N].
 
     Notes
     -----
@@ -117,7 +199,27 @@ def acceleration_frequency_response(load: LoadedMode, design: dict | None) -> Re
 
 
 def acceleration_psd(load: LoadedMode, design: dict | None) -> ResponseCurves:
-    """One-sided acceleration PSD S_a(f) = |H_a(f)|^2 S_F(f) [(m/s^2)^2/Hz], bare and damped."""
+    """Return the one-sided acceleration PSD S_a(f) [(m/s^2)^2/Hz], bare and damped.
+
+    Parameters
+    ----------
+    load : LoadedMode
+        The case's mode under its design load (:func:`tmd.jobs.loaded_mode_of`).
+    design : dict or None
+        The results.json ``design`` block (mass ratio, frequency ratio, damping
+        ratio); None for the bare building only.
+
+    Returns
+    -------
+    ResponseCurves
+        On :func:`response_frequencies` [Hz], S_a [(m/s^2)^2/Hz] at the
+        evaluation height.
+
+    Notes
+    -----
+    S_a(f) = |H_a(f)|^2 S_F(f), one-sided per Hz (common practice: the
+    input-output relation of linear random vibration).
+    """
     f = response_frequencies(load.mode.frequency_hz)
     bare, damped = _acceleration_transfer(load, design, f)
     s_f = np.asarray(load.spectrum(f), dtype=float)
@@ -126,7 +228,20 @@ def acceleration_psd(load: LoadedMode, design: dict | None) -> ResponseCurves:
 
 
 def mass_ratio_grid(max_mass_ratio: float, design_mass_ratio: float | None) -> np.ndarray:
-    """Log-spaced mass ratios up to the case's maximum, with the chosen design's included."""
+    """Return log-spaced mass ratios up to the case's maximum, the design's included.
+
+    Parameters
+    ----------
+    max_mass_ratio : float
+        The case's largest mass ratio [-].
+    design_mass_ratio : float or None
+        The chosen design's mass ratio [-], added to the grid.
+
+    Returns
+    -------
+    numpy.ndarray
+        15 mass ratios from min(0.002, max / 10) to the maximum [-], sorted.
+    """
     grid = np.geomspace(min(MIN_MASS_RATIO, max_mass_ratio / 10), max_mass_ratio,
                         MASS_RATIO_POINTS)
     if design_mass_ratio is not None:
@@ -136,11 +251,27 @@ def mass_ratio_grid(max_mass_ratio: float, design_mass_ratio: float | None) -> n
 
 def mass_ratio_study(load: LoadedMode, mass_ratio: np.ndarray, *, objective: str,
                      max_stroke_m: float | None) -> MassRatioStudy:
-    """Peak acceleration and stroke of the best tuning at each mass ratio.
+    """Return the peak acceleration and stroke of the best tuning at each mass ratio.
 
     Each mass ratio is tuned with :func:`tmd.design.tune` (the case's
     objective and stroke limit); the tuned designs are then assessed in one
     batched call of the engine.
+
+    Parameters
+    ----------
+    load : LoadedMode
+        The case's mode under its design load (:func:`tmd.jobs.loaded_mode_of`).
+    mass_ratio : numpy.ndarray
+        The mass ratios m_d / M* to tune [-].
+    objective : str
+        "acceleration" or "displacement", as the case's [damper].
+    max_stroke_m : float or None
+        Peak stroke limit inside each tuning [m].
+
+    Returns
+    -------
+    MassRatioStudy
+        The peaks at each mass ratio.
     """
     tunings = [tune(load, float(mu), objective=objective, max_stroke_m=max_stroke_m)
                for mu in mass_ratio]
@@ -153,7 +284,19 @@ def mass_ratio_study(load: LoadedMode, mass_ratio: np.ndarray, *, objective: str
 
 
 def sweep_from_results(rows: list[dict]) -> Sweep:
-    """A results.json ``sweep`` / ``sweep_bare`` list as arrays, sorted by factor."""
+    """Return a results.json ``sweep`` / ``sweep_bare`` list as arrays, sorted by factor.
+
+    Parameters
+    ----------
+    rows : list of dict
+        Rows with ``structure_frequency_factor`` [-] and
+        ``peak_acceleration_m_s2`` [m/s^2].
+
+    Returns
+    -------
+    Sweep
+        The rows as arrays, by increasing factor.
+    """
     s = np.array([r["structure_frequency_factor"] for r in rows], dtype=float)
     a = np.array([r["peak_acceleration_m_s2"] for r in rows], dtype=float)
     order = np.argsort(s)
@@ -166,6 +309,21 @@ def detuned_sweep(load: LoadedMode, design: dict, factors: np.ndarray) -> Sweep:
     The structure keeps its modal mass and damping ratio (its stiffness scales
     by s^2); the damper keeps its absolute mass, frequency and damping ratio,
     hence its spring and dashpot. One batched engine call over all s.
+
+    Parameters
+    ----------
+    load : LoadedMode
+        The case's mode under its design load (:func:`tmd.jobs.loaded_mode_of`).
+    design : dict
+        The results.json ``design`` block (``mass_kg``, ``frequency_hz``,
+        ``damping_ratio``).
+    factors : numpy.ndarray
+        Structure frequency factors s [-].
+
+    Returns
+    -------
+    Sweep
+        The damped peak acceleration at each s [m/s^2].
     """
     s = np.asarray(factors, dtype=float)
     shape = s.shape + (1,)
@@ -180,10 +338,22 @@ def detuned_sweep(load: LoadedMode, design: dict, factors: np.ndarray) -> Sweep:
 
 
 def entry_peak(entry: dict, group: str) -> float | None:
-    """Peak acceleration of ``group`` ("bare" or "design") in a ``by_return_period`` entry.
+    """Return the peak acceleration of ``group`` in a ``by_return_period`` entry.
 
     Accepts the nested form ``entry[group]["peak_acceleration_m_s2"]`` and the
     flat form ``entry[group + "_peak_acceleration_m_s2"]``.
+
+    Parameters
+    ----------
+    entry : dict
+        One ``by_return_period`` row of results.json.
+    group : str
+        "bare" or "design".
+
+    Returns
+    -------
+    float or None
+        The peak [m/s^2]; None when the entry has none.
     """
     nested = entry.get(group)
     if isinstance(nested, dict) and nested.get("peak_acceleration_m_s2") is not None:
@@ -193,7 +363,18 @@ def entry_peak(entry: dict, group: str) -> float | None:
 
 
 def design_return_period(results: dict) -> float | None:
-    """Return period [years] of the design load, when the case states it."""
+    """Return the return period [years] of the design load, when the case states it.
+
+    Parameters
+    ----------
+    results : dict
+        results.json of a design job.
+
+    Returns
+    -------
+    float or None
+        ``target.return_period_years`` (or the case input's); None if absent.
+    """
     stated = results.get("target", {}).get("return_period_years")
     if stated is None:
         stated = results.get("case", {}).get("inputs", {}).get("target", {}).get(
@@ -206,6 +387,18 @@ def comfort_responses(results: dict, structure_frequency_hz: float) -> list[Comf
 
     One entry per ``by_return_period`` entry, plus the design load itself
     when its return period is not among them (or not stated).
+
+    Parameters
+    ----------
+    results : dict
+        results.json of a design job.
+    structure_frequency_hz : float
+        The building's natural frequency [Hz].
+
+    Returns
+    -------
+    list of ComfortResponse
+        The bare and damped peaks [m/s^2] per return period.
     """
     out = []
     for entry in results.get("by_return_period") or []:
@@ -225,7 +418,22 @@ def comfort_responses(results: dict, structure_frequency_hz: float) -> list[Comf
 
 def matching_limits(limits, responses: list[ComfortResponse]) -> tuple[list[ComfortLimit],
                                                                        list[ComfortLimit]]:
-    """Split comfort limits into those with a response of the same return period and the rest."""
+    """Split comfort limits into those with a response of the same return period and the rest.
+
+    Parameters
+    ----------
+    limits : iterable of ComfortLimit
+        The comfort limits to draw.
+    responses : list of ComfortResponse
+        The responses per return period.
+
+    Returns
+    -------
+    shown : list of ComfortLimit
+        Limits whose return period has a response.
+    other : list of ComfortLimit
+        The rest.
+    """
     periods = {r.return_period_years for r in responses if r.return_period_years is not None}
     shown = [c for c in limits if c.return_period_years in periods]
     return shown, [c for c in limits if c.return_period_years not in periods]

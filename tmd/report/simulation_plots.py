@@ -64,7 +64,7 @@ def maxima_distribution(maxima_m_s2, *, sigma_m_s2: float, upcrossing_hz: float,
 
 
 def time_history_excerpt(time_s, acceleration_m_s2, stroke_m=None, *, ax=None):
-    """The first two minutes of one simulated record.
+    """Return the first two minutes of one simulated record.
 
     Parameters
     ----------

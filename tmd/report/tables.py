@@ -54,7 +54,19 @@ DAMPER_LABELS = {
 
 @dataclass(frozen=True)
 class Cell:
-    """One table cell: a results value (with its key path) or a plain label."""
+    """One table cell: a results value (with its key path) or a plain label.
+
+    Parameters
+    ----------
+    value : object
+        The value as in results.json (SI units), or the label's text.
+    key : str, optional
+        The value's key path in results.json (e.g. ``"design.mass_kg"``);
+        None for a plain label.
+    scale : float
+        Factor applied for display (e.g. 1e-3 for kg shown in t) [-]; the
+        HTML keeps the unscaled value beside it.
+    """
 
     value: object
     key: str | None = None
@@ -62,6 +74,7 @@ class Cell:
 
     @property
     def text(self) -> str:
+        """The printed text: the (scaled) value formatted, or the label."""
         if self.key is None or not _is_number(self.value) or self.scale == 1.0:
             return format_value(self.value)
         return format_value(self.value * self.scale)
@@ -69,7 +82,23 @@ class Cell:
 
 @dataclass(frozen=True)
 class Table:
-    """A titled table: ``header`` cells, then rows of cells (lists of cells allowed in a row)."""
+    """A titled table: ``header`` cells, then rows of cells (lists of cells allowed in a row).
+
+    Parameters
+    ----------
+    name : str
+        Short identifier (the table's HTML id and CSV file name).
+    title : str
+        The heading shown above it.
+    header : list of Cell
+        The column headings, units in brackets.
+    rows : list of list of Cell
+        The rows.
+    note : str
+        A note printed below the table.
+    extra : dict
+        Further data a renderer may use.
+    """
 
     name: str
     title: str
@@ -84,11 +113,23 @@ def _is_number(value) -> bool:
 
 
 def format_value(value, digits: int = SIGNIFICANT) -> str:
-    """Printed form of a results value: numbers to ``digits`` significant figures.
+    """Return the printed form of a results value: numbers to ``digits`` significant figures.
 
     Fixed notation (thousands separated by commas) for 1e-3 <= |x| < 1e9,
     otherwise scientific; integers and integral floats without decimals;
     booleans as yes / no.
+
+    Parameters
+    ----------
+    value : object
+        A results value (number, bool, str or None).
+    digits : int
+        Significant figures of a non-integral number.
+
+    Returns
+    -------
+    str
+        The text; a dash for None and non-finite numbers.
     """
     if value is None:
         return "—"
@@ -174,17 +215,53 @@ def leaf_label(dotted: str, key: str, labels: dict | None = None) -> tuple[str, 
 
 
 def path_label(dotted: str) -> str:
-    """A key path as words; list indices are dropped (an index would be an untraced number)."""
+    """Return a key path as words; list indices are dropped (an index would be untraced).
+
+    Parameters
+    ----------
+    dotted : str
+        A results.json key path such as ``"wind.return_periods_years.1"``.
+
+    Returns
+    -------
+    str
+        The parts in words joined by " · ", without list indices.
+    """
     parts = [p.replace("_", " ") for p in dotted.split(".") if not p.isdigit()]
     return " · ".join(parts)
 
 
 def scalar(value) -> bool:
+    """Tell whether a results value is a scalar (None, bool, number or str).
+
+    Parameters
+    ----------
+    value : object
+        A results value.
+
+    Returns
+    -------
+    bool
+        True for None, bool, int, float or str.
+    """
     return value is None or isinstance(value, bool | int | float | str)
 
 
 def flatten(block: dict, path: str) -> list[tuple[str, str, object]]:
-    """(key path, leaf key, value) for every scalar in a nested dict (lists by index)."""
+    """Return (key path, leaf key, value) for every scalar in a nested dict (lists by index).
+
+    Parameters
+    ----------
+    block : dict
+        A results.json block.
+    path : str
+        The block's own key path, prefixed to every entry ('' at the top).
+
+    Returns
+    -------
+    list of (str, str, object)
+        Every scalar leaf in order, with its dotted path and its own key.
+    """
     out = []
     for key, value in block.items():
         here = f"{path}.{key}" if path else str(key)
@@ -243,7 +320,28 @@ def key_value_table(name: str, title: str, block: dict, path: str, *, keys=None,
 
 def record_table(name: str, title: str, records: list[dict], path: str, *, columns=None,
                  note: str = "") -> Table:
-    """One row per record (e.g. sweep points, options); columns = the records' scalar keys."""
+    """Return a table of one row per record (e.g. sweep points, options).
+
+    Parameters
+    ----------
+    name : str
+        The table's identifier.
+    title : str
+        Its heading.
+    records : list of dict
+        The records, e.g. a results.json ``sweep`` list.
+    path : str
+        The records' key path in results.json (cells carry ``path.i.key``).
+    columns : list of str, optional
+        The keys to show; by default every scalar key of the records.
+    note : str
+        A note printed below the table.
+
+    Returns
+    -------
+    Table
+        Headings with the units of the keys' suffixes; one row per record.
+    """
     if columns is None:
         columns = []
         for record in records:
@@ -342,7 +440,22 @@ def _lookup(block, dotted: str):
 
 
 def retuning_table(design: dict, frequency_band: float, band_source: str) -> Table:
-    """The re-tuning range to specify: damper frequency and spring over f_s (1 +/- band).
+    """Return the re-tuning range to specify: damper frequency and spring over f_s (1 +/- band).
+
+    Parameters
+    ----------
+    design : dict
+        The results.json ``design`` block (``frequency_hz``,
+        ``stiffness_n_per_m``).
+    frequency_band : float
+        Half-width b of the band of structure frequency factors [-].
+    band_source : str
+        Where the band comes from, in words, for the note.
+
+    Returns
+    -------
+    Table
+        Lowest, designed and highest damper frequency [Hz] and spring [N/m].
 
     Notes
     -----
@@ -368,13 +481,23 @@ def retuning_table(design: dict, frequency_band: float, band_source: str) -> Tab
 
 
 def csv_bytes(table: Table) -> bytes:
-    """The table as CSV: header texts, then each cell's scaled value at full precision.
+    """Return the table as CSV: header texts, then each cell's scaled value at full precision.
 
     Spreadsheet programs guess the encoding of a CSV without a byte-order mark
     and garble non-ASCII text, so units are written as the ASCII suffixes of
     the results.json keys (``m_s2``, ``n_s_per_m``) and the project's own
     labels are kept to ASCII. Text from the case (a name with an accent) can
     still be non-ASCII; such a file is written as UTF-8 with a byte-order mark.
+
+    Parameters
+    ----------
+    table : Table
+        The table.
+
+    Returns
+    -------
+    bytes
+        The CSV file's content, ASCII or UTF-8 with a byte-order mark.
     """
     buffer = io.StringIO()
     writer = csv.writer(buffer, lineterminator="\n")
@@ -393,7 +516,7 @@ _CSV_SYMBOLS = {"·": "-", "±": "+/-", "²": "^2", "³": "^3", "×": "x", "—"
 
 
 def _ascii(text: str) -> str:
-    """A label or unit for a CSV: units as results.json suffixes, symbols spelt in ASCII."""
+    """Return a label or unit for a CSV: units as results.json suffixes, symbols spelt in ASCII."""
     if text in _CSV_UNITS:
         return _CSV_UNITS[text]
     if text.endswith("]") and "[" in text:

@@ -239,7 +239,7 @@ class _Problem:
                                       np.broadcast_to(self.zeta[keep], shape))
 
     def assess(self, mu, keep, load=None, zeta_s=None, responses=None) -> Assessment:
-        """The engine on every scenario, under the design load or a given one."""
+        """Return the engine on every scenario, under the design load or a given one."""
         c = self.loaded if load is None else load
         zeta_s = self.zeta_s if zeta_s is None else zeta_s
         return assess(self.fs, c.mode.modal_mass_kg, zeta_s, self.absorbers(mu, keep),
@@ -497,7 +497,7 @@ def _solve_step(problem: _Problem, mu, keep, relative):
 
 
 def _linearised(problem: _Problem, load: LoadedMode, zeta_s, mu, keep, idx, relative=True):
-    """The engine's responses and the step's linearised impedance under one load.
+    """Return the engine's responses and the step's linearised impedance under one load.
 
     Returns the assessment at mu and, per scenario and grid node, omega,
     omega^2, the dampers' denominators d, and p, q of the linearised

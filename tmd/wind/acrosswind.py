@@ -124,7 +124,7 @@ def bandwidths(side_ratio):
 
 
 def rms_lift_coefficient(side_ratio) -> float:
-    """rms across-wind base-moment coefficient C'_L = sigma_M / (q_H B H^2) [-].
+    """Return the rms across-wind base-moment coefficient C'_L = sigma_M / (q_H B H^2) [-].
 
     Parameters
     ----------
@@ -154,7 +154,7 @@ def _peaks(side_ratio):
 
 
 def model_spectrum(reduced_frequency, side_ratio):
-    """The source's normalised spectrum F_L(n) = f S_M(f) / sigma_M^2 [-].
+    """Return the source's normalised spectrum F_L(n) = f S_M(f) / sigma_M^2 [-].
 
     Parameters
     ----------
