@@ -172,6 +172,8 @@ class SizingTable(_Table):
 
 
 class MassTable(_Table):
+    """The ``[mass]`` table of a building case: mass per height (keys in README)."""
+
     heights_m: list[Finite]
     mass_per_length_kg_m: list[Positive]
     inertia_per_length_kg_m: list[Positive] | None = None

@@ -125,7 +125,7 @@ def _build(case: BuildingCase) -> dict:
 
 
 def _base_blocks(case: BuildingCase, designed) -> list[dict] | None:
-    """Base moments per return period and wind direction, bare and damped (with [mass])."""
+    """Return the base moments per return period and wind direction, bare and damped."""
     model = case.model
     if model.mass is None:
         return None

@@ -286,7 +286,7 @@ class MassDistribution:
     inertia_per_length_kg_m: tuple[float, ...] | None = None
 
     def base_coefficients(self, modes: tuple[BuildingMode, ...]) -> tuple[np.ndarray, tuple]:
-        """Base overturning moments and torque per unit modal coordinate.
+        """Return the base overturning moments and torque per unit modal coordinate.
 
         Parameters
         ----------

@@ -198,12 +198,13 @@ def assess_building(model: BuildingModel, load: CrossSpectrum, duration_s: float
 class BaseResponse:
     """Base overturning moments (and torque) of a batch of designs.
 
-    Attributes
+    Parameters
     ----------
     names : tuple of str
-        From :meth:`tmd.building_modes.MassDistribution.base_coefficients`.
+        Which moment each column is, from
+        :meth:`tmd.building_modes.MassDistribution.base_coefficients`.
     sigma_n_m, peak_n_m : arrays (..., k)
-        rms and Davenport peak [N m].
+        Rms and Davenport peak of each base moment [N m].
     """
 
     names: tuple[str, ...]
@@ -213,7 +214,7 @@ class BaseResponse:
 
 def assess_base(model: BuildingModel, load: CrossSpectrum, duration_s: float,
                 absorbers: Absorbers, *, damping_ratio=None) -> BaseResponse:
-    """rms and peak base moments, for a model with a mass distribution.
+    """Return the rms and peak base moments, for a model with a mass distribution.
 
     Parameters
     ----------

@@ -448,7 +448,7 @@ def spectra_block(building, mode_frequency_hz: float, wind_loads, along_spectra,
 
 
 def along_spectra(case) -> list:
-    """The along-wind modal force spectrum of each of a wind case's loads (None without a site).
+    """Return the along-wind modal force spectrum of each of a wind case's loads.
 
     Parameters
     ----------

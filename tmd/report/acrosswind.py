@@ -57,7 +57,7 @@ PLOT_FLOOR_SHARE = 1e-4
 
 
 def across_wind_section(results: dict, figure, table) -> Section | None:
-    """The section, or None when the results hold no across-wind block.
+    """Return the across-wind section, or None when the results hold no across-wind block.
 
     Parameters
     ----------
@@ -114,6 +114,7 @@ def spectra_figure(spectra: dict, strouhal_number, figure) -> Figure:
     strouhal_number : float or None
         St of the across-wind model (its spectral peak), marked when given.
     figure : callable(name, ax, caption) -> Figure
+        The report's figure maker: draws on ``ax`` and returns the Figure.
 
     Returns
     -------
@@ -133,7 +134,7 @@ def spectra_figure(spectra: dict, strouhal_number, figure) -> Figure:
 
 
 def lock_in_table(rows: list[dict]) -> Table:
-    """The vortex-shedding check per return period (quantities down, return periods across).
+    """Return the vortex-shedding check per return period (quantities down, periods across).
 
     Parameters
     ----------
