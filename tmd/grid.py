@@ -239,7 +239,7 @@ def _pole_panels(centre, half_width, edges, n, f_out, w_out):
 
 @lru_cache(maxsize=8)
 def _tail_maps(n: int, finite: bool) -> tuple[np.ndarray, np.ndarray]:
-    """Fixed matrices taking the logs of the tail ends to log f and to d(log f) x weight.
+    """Return the fixed matrices taking the logs of the tail ends to log f and to d(log f) x weight.
 
     The ends are (far_lo, low_edge, high_edge, far_hi[, f_max]); on the k-th of
     TAIL_PANELS equal steps from log a to log b the node at t has

@@ -389,7 +389,7 @@ def _probability(loaded, damper, target, uncertainty, damping):
 
 
 def _tensor_nodes(uncertainty: Uncertainty) -> tuple[np.ndarray, np.ndarray]:
-    """The u_s grid and the Chebyshev nodes of u_d of the random-damping tensor grid.
+    """Return the u_s grid and the Chebyshev nodes of u_d of the random-damping tensor grid.
 
     The u_s grid takes every other point of the ``inner_points`` sweep (13 at
     25, spacing 1): measured on the Harbourline case against 49 x 10 nodes,
@@ -548,7 +548,7 @@ def least_mass_for_probability(loaded: LoadedMode, target_peak_m_s2: float,
         return at_log(math.log(mu))
 
     def at_log(x):
-        """The design and P at log mu = x, each evaluated once (keyed by x itself)."""
+        """Return the design and P at log mu = x, each evaluated once (keyed by x itself)."""
         if x not in evaluated:
             mu = math.exp(x)
             t = tune(loaded, mu, max_stroke_m=max_stroke_m)
@@ -609,7 +609,7 @@ def _logit(p: float) -> float:
 
 
 def _bare_exceeds_everywhere(loaded, target, uncertainty, damping) -> bool:
-    """True when the bare building is known to exceed the target more often than acceptable.
+    """Tell whether the bare building is known to exceed the target more often than acceptable.
 
     A bare mode's peak falls as its damping rises (its resonant variance goes
     as 1 / zeta; common practice), so exceeding on the whole u_s sweep at the
@@ -633,7 +633,7 @@ def _bare_exceeds_everywhere(loaded, target, uncertainty, damping) -> bool:
 
 
 def _next_mass(evaluated, lo, hi, lowest, highest, uncertainty, aim):
-    """The next log mu of the least-mass search, predicted from the grids already evaluated.
+    """Return the next log mu of the least-mass search, predicted from the grids already evaluated.
 
     log(peak / target) on the grid is interpolated node by node in log mu
     (Lagrange through the (up to) three evaluated masses nearest the best so
