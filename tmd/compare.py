@@ -315,7 +315,7 @@ def _tank_row(job: _Job) -> dict:
 
 
 def _column_freeboard(job: _Job, d) -> tuple[float, str, dict]:
-    """The column's freeboard, how it was chosen, and its check at every return period."""
+    """Return the column's freeboard, how it was chosen, and its check at every return period."""
     given = job.settings.column.freeboard_m
     if not job.return_period_loads:
         if given is not None:

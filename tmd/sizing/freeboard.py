@@ -48,7 +48,7 @@ class FreeboardWarning(UserWarning):
 
 
 def column_by_return_period(loads, design: ColumnDesign) -> list[dict]:
-    """The specified liquid column at every load: peak excursion and damping.
+    """Return the specified liquid column at every load: peak excursion and damping.
 
     Parameters
     ----------
@@ -84,7 +84,7 @@ def column_by_return_period(loads, design: ColumnDesign) -> list[dict]:
 
 
 def tank_by_return_period(loads, design: TankDesign, depth_ratio: float) -> list[dict]:
-    """The specified sloshing tanks at every load: peak wave height at the wall and damping.
+    """Return the specified sloshing tanks at every load: peak wave height at the wall and damping.
 
     Parameters
     ----------
