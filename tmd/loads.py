@@ -553,7 +553,7 @@ def modal_force_spectrum(site, building, return_period_years=50.0, *, spectrum="
 
 
 def tail_exponent(frequency_hz, psd):
-    """The power law that continues a modal force table above its last row [-].
+    """Return the power law that continues a modal force table above its last row [-].
 
     Parameters
     ----------

@@ -454,7 +454,7 @@ def _convex_step(problem: _Problem, mu, keep):
 
 
 def _solve_step(problem: _Problem, mu, keep, relative):
-    """The convex program of one step; (proposal, status, '') or (None, None, why)."""
+    """Solve the convex program of one step; (proposal, status, '') or (None, None, why)."""
     import cvxpy as cp  # here, not at module level: importing it takes ~1 s
 
     idx = np.flatnonzero(keep)
