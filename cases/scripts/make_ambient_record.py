@@ -26,6 +26,13 @@ SEED = 20261202
 
 
 def main(path: str) -> None:
+    """Write the record as CSV.
+
+    Parameters
+    ----------
+    path : str
+        The CSV file to write (time [s] and acceleration [m/s^2]).
+    """
     w = 2 * np.pi * FREQUENCY_HZ
     a = np.array([[0.0, 1.0], [-w * w, -2 * DAMPING_RATIO * w]])
     sys_d = signal.cont2discrete((a, np.array([[0.0], [1.0]]),

@@ -31,6 +31,23 @@ MODAL_WEIGHT = 0.35   # J, modal weighting of the strip forces [-]
 
 
 def force_psd(frequency_hz):
+    """Return the demo tower's one-sided modal force PSD [N^2/Hz].
+
+    Parameters
+    ----------
+    frequency_hz : numpy.ndarray
+        f [Hz], > 0.
+
+    Returns
+    -------
+    numpy.ndarray
+        S_F(f) = (rho C_d A U)^2 S_u(f) chi^2(f) J [N^2/Hz] (module notes).
+
+    References
+    ----------
+    EN 1991-1-4:2005, Annex B, eq. B.2 (S_u); Vickery (1965), NPL Aero Report
+    1143 (admittance, form from memory).
+    """
     area = HEIGHT * BREADTH
     fl = frequency_hz * LENGTH_SCALE / SPEED
     su = (INTENSITY * SPEED) ** 2 * 6.8 * fl / (1 + 10.2 * fl) ** (5 / 3) / frequency_hz
