@@ -294,7 +294,8 @@ def _tail_panels(low_edge, high_edge, f_min, f_max, n, f_out, w_out):
     log_ends = np.log(ends)
     f_log = np.matmul(log_ends, node_map, out=f_out[..., :logs])
     np.exp(f_log, out=f_log)
-    w_log = np.matmul(np.diff(log_ends, axis=-1), weight_map, out=w_out[..., :logs])
+    steps = log_ends[..., 1:] - log_ends[..., :-1]  # >= 0: the ends are in increasing order
+    w_log = np.matmul(steps, weight_map, out=w_out[..., :logs])
     w_log *= f_log
     # Linear panel [f_min, far_lo].
     linear = slice(logs, logs + n)

@@ -440,7 +440,7 @@ def spectral_response(frequency_hz, modal_mass_kg, damping_ratio, absorbers: Abs
     sums = {name: np.empty((total, 3, n) if name == "stroke" else (total, 3))
             for name in wanted}
     top_decade = None
-    finite_top = np.isfinite(spectrum.f_max_hz)
+    finite_top = math.isfinite(spectrum.f_max_hz)
     if "acceleration" in wanted:
         top_decade = np.zeros((total, 3))
     breakpoints = load_breakpoints(spectrum)

@@ -159,9 +159,9 @@ def single_tmd(structure_frequency_hz, modal_mass_kg, mass_ratio, frequency_rati
     Absorbers
         Batch shape = the broadcast shape of the inputs, one absorber each.
     """
-    mu, ratio, zeta, fs, mass = np.broadcast_arrays(
-        *(np.asarray(v, dtype=float) for v in
-          (mass_ratio, frequency_ratio, damping_ratio, structure_frequency_hz, modal_mass_kg))
-    )
+    mu, ratio, zeta, fs, mass = (np.asarray(v, dtype=float) for v in
+                                 (mass_ratio, frequency_ratio, damping_ratio,
+                                  structure_frequency_hz, modal_mass_kg))
+    # Absorbers broadcasts the fields to one shape (only where they differ).
     return Absorbers.tuned_masses((mu * mass)[..., None], (ratio * fs)[..., None],
                                   zeta[..., None])
