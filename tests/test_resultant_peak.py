@@ -46,7 +46,7 @@ def test_isotropic_pair_matches_the_closed_form_rate():
 
 
 def test_mean_maximum_of_the_resultant_matches_seeded_simulation():
-    # Reference: 420 seeded 600 s records of the correlated pair (a_x, a_y),
+    # Reference: 400 seeded, independent 600 s records of the correlated pair (a_x, a_y),
     # simulated by the spectral representation method (Shinozuka & Deodatis
     # 1991, Appl. Mech. Rev. 44(4)) from the engine's transfer functions and the
     # load, with complex Gaussian coefficients (an exactly Gaussian process).
@@ -55,7 +55,10 @@ def test_mean_maximum_of_the_resultant_matches_seeded_simulation():
     moments = modal_response(FREQ, MASS, ZETA, ABSORBERS, PHI, load, rows)
     estimate = mean_maximum_resultant(moments.m0, moments.m1, moments.m2, 600.0)
 
-    dt, size = 0.125, 2**15  # 4096 s records, cut into six 600 s windows
+    # Each record is simulated 2048 s long (a fine frequency step through the
+    # resonances) and only its first 600 s are kept, so the 400 maxima come from
+    # 400 independent records, as the issue's precision asks.
+    dt, size = 0.125, 2**14
     df = 1.0 / (size * dt)
     f = np.arange(1, size // 2) * df
     ext = extended_transfer(f, FREQ, MASS, ZETA, ABSORBERS, PHI)
@@ -63,21 +66,23 @@ def test_mean_maximum_of_the_resultant_matches_seeded_simulation():
     s = np.einsum("fon,fn,fpn->fop", h, load.diagonal(f), np.conj(h))
     chol = np.linalg.cholesky(2.0 * df * s + 1e-30 * np.eye(2))
     rng = np.random.default_rng(20261202)
-    records = 70
-    z = (rng.standard_normal((records, f.size, 2))
-         + 1j * rng.standard_normal((records, f.size, 2))) / np.sqrt(2.0)
-    spectrum = np.zeros((records, size, 2), complex)
-    spectrum[:, 1:size // 2] = np.einsum("fop,rfp->rfo", chol, z)
-    y = np.real(np.fft.ifft(spectrum, axis=1)) * size
-    window = int(600 / dt)
-    count = size // window
-    resultant = np.sqrt(np.sum(y[:, :count * window] ** 2, axis=-1))
-    maxima = resultant.reshape(records, count, window).max(axis=-1).ravel()
+    records, chunk, window = 400, 50, int(600 / dt)
+    maxima, sum_sq, count = [], np.zeros(2), 0
+    for _ in range(records // chunk):  # chunks bound the memory (~30 MB each)
+        z = (rng.standard_normal((chunk, f.size, 2))
+             + 1j * rng.standard_normal((chunk, f.size, 2))) / np.sqrt(2.0)
+        spectrum = np.zeros((chunk, size, 2), complex)
+        spectrum[:, 1:size // 2] = np.einsum("fop,rfp->rfo", chol, z)
+        y = np.real(np.fft.ifft(spectrum, axis=1)) * size
+        sum_sq += np.sum(y**2, axis=(0, 1))
+        count += chunk * size
+        maxima.append(np.sqrt(np.sum(y[:, :window] ** 2, axis=-1)).max(axis=-1))
+    maxima = np.concatenate(maxima)
     assert maxima.size >= 400
     # The simulated variances agree with the engine's (sampling error ~2%).
-    np.testing.assert_allclose(y.var(axis=(0, 1)), moments.variance, rtol=0.04)
+    np.testing.assert_allclose(sum_sq / count, moments.variance, rtol=0.04)
     # Issue 9: within 3% on the mean 600 s maximum. The standard error of the
-    # simulated mean is ~0.6%; measured agreement ~1-2% for this damping.
+    # simulated mean is ~0.5%; measured agreement 2.2% (estimate above) for this damping.
     assert estimate == pytest.approx(maxima.mean(), rel=0.03)
     # The resultant's peak is not g times one component's rms.
     assert estimate > 1.2 * 3.0 * moments.sigma.max()
