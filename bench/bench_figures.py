@@ -31,7 +31,7 @@ import numpy as np
 
 from tmd.case import read_case
 from tmd.dampers.absorber import Absorbers
-from tmd.jobs import compare_job, design_job, loaded_mode_of
+from tmd.jobs import compare_job, design_job, figure_series, loaded_mode_of
 from tmd.performance import assess
 from tmd.report import plots, series
 from tmd.report.comfort import comfort_limits
@@ -61,13 +61,13 @@ def figure_makers():
     load = loaded_mode_of(case)
     d = design_results["design"]
     target = design_results["target"]["peak_acceleration_m_s2"]
-    f, s_f = series.force_spectrum_curve(load)
-    h = series.acceleration_frequency_response(load, d)
-    p = series.acceleration_psd(load, d)
-    grid = series.mass_ratio_grid(case.damper.max_mass_ratio, d["mass_ratio"])
-    study = series.mass_ratio_study(load, grid, objective=case.damper.objective,
+    f, s_f = figure_series.force_spectrum_curve(load)
+    h = figure_series.acceleration_frequency_response(load, d)
+    p = figure_series.acceleration_psd(load, d)
+    grid = figure_series.mass_ratio_grid(case.damper.max_mass_ratio, d["mass_ratio"])
+    study = figure_series.mass_ratio_study(load, grid, objective=case.damper.objective,
                                     max_stroke_m=case.damper.max_stroke_m)
-    nominal = series.detuned_sweep(load, d, FACTORS)
+    nominal = figure_series.detuned_sweep(load, d, FACTORS)
     m = load.mode
     bare = assess(FACTORS * m.frequency_hz, m.modal_mass_kg, m.damping_ratio,
                   Absorbers.none(FACTORS.shape), load.spectrum, load.duration_s,
@@ -93,7 +93,7 @@ def figure_makers():
             chosen_peak_m_s2=d["peak_acceleration_m_s2"], chosen_stroke_m=d["peak_stroke_m"],
             max_stroke_m=case.damper.max_stroke_m),
         "detuning_sweep": lambda: plots.plot_detuning_sweep(
-            FACTORS, bare, nominal.peak_acceleration_m_s2, target_peak_m_s2=target,
+            FACTORS, bare, nominal, target_peak_m_s2=target,
             frequency_band=0.15),
         "comfort": lambda: plots.plot_comfort_chart(
             shown, responses, target_peak_m_s2=target, target_return_period_years=None),

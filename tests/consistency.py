@@ -41,7 +41,7 @@ GOVERNED_BY = frozenset({"target", "stroke", "mass", "bare", "fixed mass ratio",
 # of wind directions and bearings (degrees clockwise from north).
 _UNIT = re.compile(
     r"_(hz|kg|m|s|n|rad|pa|m_s|m_s2|m2|m3|kg_m|kg_m2|kg_m3|n_per_m|n_s_per_m|s_per_m"
-    r"|n2_per_hz|m2_s2_per_hz|m2_per_hz|years|j|deg)$")
+    r"|n2_per_hz|m2_s2_per_hz|m2_per_hz|m_s2_per_n|years|j|deg)$")
 # Last words of dimensionless quantities (ratios, factors, counts, ...).
 _DIMENSIONLESS_WORDS = frozenset({
     "ratio", "factor", "factors", "coefficient", "count", "steps", "stages", "columns",

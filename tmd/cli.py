@@ -165,7 +165,7 @@ def design(case: CaseArg,
     print_robustness(result)
     print_recommendation(result)
     print_notes(result)
-    _write(c, result, target)
+    _write(result, target)
 
 
 def _design_building(case_path: Path, out: Path | None) -> None:
@@ -201,13 +201,13 @@ def _case_and_output(case_path: Path, out: Path | None):
     return c, target
 
 
-def _write(c, result, target: OutputFolder):
+def _write(result, target: OutputFolder):
     """results.json, the HTML report, figures and tables, all at once."""
     # Imported here: matplotlib is only needed by the commands that write a report.
     from tmd.report import progress_bar, render_report
 
     with progress_bar("Writing the report", console=err_console) as step:
-        files = {"results.json": to_json(result)} | render_report(c, result, on_step=step)
+        files = {"results.json": to_json(result)} | render_report(result, on_step=step)
     written = target.write(files)
     out_console.print(escape(f"wrote {len(written)} files to {target.folder} (results.json, "
                              "report.html, figures/, tables/)"), highlight=False, soft_wrap=True)
@@ -284,7 +284,7 @@ def compare(case: CaseArg,
     if (freeboard := terminal.freeboard_table(result)) is not None:
         out_console.print(freeboard)
     print_notes(result)
-    _write(c, result, target)
+    _write(result, target)
 
 
 @app.command()

@@ -20,7 +20,7 @@ from dataclasses import asdict, dataclass, fields
 
 from tmd.dampers.tuned_mass import TunedMassDamper
 
-SCHEMA_VERSION = 18
+SCHEMA_VERSION = 19
 
 CAUTIONS = (
     "Preliminary sizing only: the results depend on the modal properties and the wind load "

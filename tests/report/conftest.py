@@ -27,7 +27,7 @@ def case_report(request, design_results):
     case = read_case(request.param)
     results = design_results(request.param)
     assert_consistent_results(as_written(results))
-    return case, as_written(results), render_report(case, results, dpi=TEST_DPI)
+    return case, as_written(results), render_report(results, dpi=TEST_DPI)
 
 
 @pytest.fixture(scope="session")
@@ -37,11 +37,11 @@ def full_report(design_results):
         # the demo spectrum's upper-edge note is already in results["warnings"]
         warnings.simplefilter("ignore", UpperEdgeWarning)
         results = full_results(case, design_results(DEMO_CASE))
-    return case, as_written(results), render_report(case, results, dpi=TEST_DPI)
+    return case, as_written(results), render_report(results, dpi=TEST_DPI)
 
 
 @pytest.fixture(scope="session")
 def compare_report(demo_compare):
     """The comparison of every option on the force-spectrum demo, with its report."""
     case, results = demo_compare
-    return case, results, render_report(case, results, dpi=TEST_DPI)
+    return case, results, render_report(results, dpi=TEST_DPI)

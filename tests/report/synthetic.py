@@ -20,6 +20,7 @@ from tmd.dampers.absorber import Absorbers
 from tmd.dampers.tuned_mass import TunedMassDamper
 from tmd.design import LoadedMode, bare_response, evaluate_tmd, tune
 from tmd.jobs import design_job, loaded_mode_of
+from tmd.jobs.figure_series import detuned_sweep
 from tmd.performance import assess, effective_damping_ratio
 from tmd.schema import design_block
 from tmd.spectra import TabulatedSpectrum
@@ -117,6 +118,9 @@ def full_results(case, results=None) -> dict:
         r["peak_acceleration_m_s2"] for r in robust_rows
         if abs(r["structure_frequency_factor"] - 1) <= BAND + 1e-9)
     results["band_design"] = robust
+    results["figure_series"]["band_design_sweep"] = {
+        "structure_frequency_factor": FACTORS.tolist(),
+        "peak_acceleration_m_s2": detuned_sweep(load, robust, FACTORS).tolist()}
     results["probabilistic"] = {
         "inputs": {"frequency_cov": 0.07, "damping_cov": 0.3, "distribution": "lognormal",
                    "exceedance_probability": 0.05, "seed": 1},

@@ -258,7 +258,7 @@ def test_no_damper_statement_is_the_sizing_message(tmp_path):
     case = read_case(tmp_path / "case.toml")
     results = as_written(design_job(case))
     assert results["design"] is None and results["sizing"]["governed_by"] == "bare"
-    html = render_report(case, results, dpi=TEST_DPI)["report.html"].decode("utf-8")
+    html = render_report(results, dpi=TEST_DPI)["report.html"].decode("utf-8")
     callout = re.findall(r'<p class="box">(.*?)</p>', html, re.S)
     assert callout == [escape(f"No damper is specified: {results['sizing']['message']}.")]
 

@@ -3,6 +3,7 @@
 import csv
 import io
 import re
+from types import SimpleNamespace
 
 import numpy as np
 import pytest
@@ -38,10 +39,16 @@ def two_dof_acceleration(f, mode, design):
     return np.abs(w**2 * dd / (ds * dd - coupling**2))
 
 
+def force_spectrum_of(results):
+    """The force spectrum curve the job stored for the report."""
+    block = results["figure_series"]["force_spectrum"]
+    return np.asarray(block["frequency_hz"]), np.asarray(block["force_psd_n2_per_hz"])
+
+
 def test_force_spectrum_figure(case_report):
-    case, _, _ = case_report
+    case, results, _ = case_report
     load = loaded_mode_of(case)
-    f, s = series.force_spectrum_curve(load)
+    f, s = force_spectrum_of(results)
     ax = plots.plot_force_spectrum(f, s, structure_frequency_hz=case.mode.frequency_hz)
     x, y = xy(ax.lines[0])
     np.testing.assert_array_equal(x, f)
@@ -63,7 +70,7 @@ def test_force_spectrum_figure(case_report):
 def test_frequency_response_figure(case_report):
     case, results, _ = case_report
     load = loaded_mode_of(case)
-    h = series.acceleration_frequency_response(load, results["design"])
+    h = series.response_curves(results["figure_series"]["response"])
     ax = plots.plot_frequency_response(h.frequency_hz, h.bare, h.damped)
     x, bare = xy(ax.lines[0])
     np.testing.assert_array_equal(x, h.frequency_hz)
@@ -87,7 +94,7 @@ def test_frequency_response_figure(case_report):
 def test_acceleration_psd_figure(case_report):
     case, results, _ = case_report
     load = loaded_mode_of(case)
-    p = series.acceleration_psd(load, results["design"])
+    p = series.acceleration_psd(series.response_curves(results["figure_series"]["response"]))
     bare, design = results["bare"], results["design"]
     ax = plots.plot_acceleration_psd(
         p.frequency_hz, p.bare, p.damped, bare_sigma_m_s2=bare["sigma_acceleration_m_s2"],
@@ -115,11 +122,10 @@ def test_acceleration_psd_figure(case_report):
 
 def test_mass_ratio_figure(case_report):
     case, results, _ = case_report
-    load = loaded_mode_of(case)
     d = results["design"]
-    grid = series.mass_ratio_grid(case.damper.max_mass_ratio, d["mass_ratio"])
-    study = series.mass_ratio_study(load, grid, objective=case.damper.objective,
-                                    max_stroke_m=case.damper.max_stroke_m)
+    study = SimpleNamespace(**{k: np.asarray(v) for k, v in
+                               results["figure_series"]["mass_ratio_study"].items()})
+    grid = study.mass_ratio
     ax = plots.plot_mass_ratio_study(
         study.mass_ratio, study.peak_acceleration_m_s2, study.peak_stroke_m,
         target_peak_m_s2=results["target"]["peak_acceleration_m_s2"],
@@ -147,11 +153,11 @@ def test_mass_ratio_figure(case_report):
 
 def test_detuning_figure(full_report):
     case, results, _ = full_report
-    load = loaded_mode_of(case)
     nominal = series.sweep_from_results(results["sweep"])
     bare = series.sweep_from_results(results["sweep_bare"])
-    robust = series.detuned_sweep(load, results["band_design"],
-                                  nominal.structure_frequency_factor)
+    stored = results["figure_series"]["band_design_sweep"]
+    robust = series.Sweep(np.asarray(stored["structure_frequency_factor"]),
+                          np.asarray(stored["peak_acceleration_m_s2"]))
     ax = plots.plot_detuning_sweep(nominal.structure_frequency_factor,
                                    bare.peak_acceleration_m_s2, nominal.peak_acceleration_m_s2,
                                    target_peak_m_s2=0.1, frequency_band=0.15,
@@ -262,17 +268,15 @@ def test_figures_have_fixed_layouts_plain_ticks_and_nothing_cut_off(full_report,
     practice for legible printed figures.
     """
     case, results, _ = full_report
-    load = loaded_mode_of(case)
-    d = results["design"]
+    h = series.response_curves(results["figure_series"]["response"])
     if figure == "force_spectrum":
-        f, s = series.force_spectrum_curve(load)
+        f, s = force_spectrum_of(results)
         ax = plots.plot_force_spectrum(f, s, structure_frequency_hz=case.mode.frequency_hz,
                                        wind_frequency_hz=f, wind_psd_m2_s2_per_hz=s / 1e6)
     elif figure == "frequency_response":
-        h = series.acceleration_frequency_response(load, d)
         ax = plots.plot_frequency_response(h.frequency_hz, h.bare, h.damped)
     elif figure == "acceleration_psd":
-        p = series.acceleration_psd(load, d)
+        p = series.acceleration_psd(h)
         ax = plots.plot_acceleration_psd(p.frequency_hz, p.bare, p.damped, bare_sigma_m_s2=0.1,
                                          bare_peak_m_s2=0.3, damped_sigma_m_s2=0.05,
                                          damped_peak_m_s2=0.15)
@@ -324,7 +328,7 @@ def test_progress_is_quiet_off_terminal_and_reports_steps(case_report):
         assert step is quiet_step
     assert buffer.getvalue() == ""
     calls = []
-    render_report(case, results, dpi=20, on_step=lambda d, t, s: calls.append((d, t, s)))
+    render_report(results, dpi=20, on_step=lambda d, t, s: calls.append((d, t, s)))
     done = [c[0] for c in calls]
     assert done == sorted(done) and calls[-1][0] == calls[-1][1]
     loud = io.StringIO()

@@ -120,7 +120,7 @@ def test_exceedance_in_the_terminal_and_report(tight):
     lines = [line for line in text.splitlines() if "50 y" in line]
     assert len(lines) == 2 and all("OVERFLOWS" in line for line in lines)
     assert sum("within" in line for line in text.splitlines() if "1 y" in line) == 2
-    files = render_report(case, result, dpi=40)
+    files = render_report(result, dpi=40)
     html = files["report.html"].decode("utf-8")
     # Every keyed cell equals its results.json value (the report tests' tracer), the
     # freeboard rows among them.

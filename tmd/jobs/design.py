@@ -12,6 +12,7 @@ from tmd.case import Case
 from tmd.dampers.absorber import Absorbers
 from tmd.dampers.tuned_mass import TunedMassDamper
 from tmd.design import LoadedMode, Sizing, TmdDesign, evaluate_tmd, least_mass, tune
+from tmd.jobs.figure_series import figure_series_block
 from tmd.jobs.robustness import (
     bare_band_maximum,
     bare_sweeps,
@@ -25,12 +26,14 @@ from tmd.jobs.shared import (
     by_return_period,
     extreme_checks,
     header_block,
+    load_name,
     loaded_mode_of,
     peak_method,
     stroke_cases_of,
     target_block,
     with_notes,
 )
+from tmd.notes import about
 from tmd.recommend import recommendation
 from tmd.schema import design_block
 from tmd.simulated_sizing import common_period_s, simulated_peak, size_for_simulated_peak
@@ -213,9 +216,33 @@ def design_job(case: Case) -> dict:
             result |= bare_sweeps(load, settings)
         result |= across_block(case)
         result["recommended"] = _recommended(case, load, result)
+        result["figure_series"] = figure_series_of(case, load, result)
         return result
 
     return with_notes(build, case)
+
+
+def figure_series_of(case: Case, load: LoadedMode, result: dict) -> dict:
+    """Compute the report's curves of a design or compare job (:mod:`tmd.jobs.figure_series`).
+
+    Parameters
+    ----------
+    case : Case
+        The validated case (its damper objective, mass and stroke limits).
+    load : LoadedMode
+        The case's design load.
+    result : dict
+        The job's results so far.
+
+    Returns
+    -------
+    dict
+        The ``figure_series`` block (:func:`tmd.jobs.figure_series.figure_series_block`).
+    """
+    with about(f"report figures on the {load_name(case)}"):
+        return figure_series_block(load, result, objective=case.damper.objective,
+                                   max_mass_ratio=case.damper.max_mass_ratio,
+                                   max_stroke_m=case.damper.max_stroke_m)
 
 
 def _recommended(case: Case, load: LoadedMode, result: dict) -> dict:

@@ -5,7 +5,7 @@ from __future__ import annotations
 from tmd.case import Case, OptionsTable
 from tmd.compare import OptionSettings, compare_options
 from tmd.defaults import FREQUENCY_BAND
-from tmd.jobs.design import size_damper
+from tmd.jobs.design import figure_series_of, size_damper
 from tmd.jobs.shared import (
     bare_block,
     header_block,
@@ -61,12 +61,14 @@ def compare_job(case: Case) -> dict:
 
     def build():
         load = loaded_mode_of(case)
-        return header_block(case) | {
+        result = header_block(case) | {
             "target": target_block(case),
             "bare": bare_block(load),
             "options_frequency_band": band,
             "options": _options(load),
         }
+        result["figure_series"] = figure_series_of(case, load, result)
+        return result
 
     def _options(load):
         with about(f"options comparison on the {load_name(case)}"):

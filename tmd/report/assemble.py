@@ -12,9 +12,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from tmd.case import Case
 from tmd.defaults import FREQUENCY_BAND
-from tmd.jobs import loaded_mode_of
 from tmd.report import plots, series
 from tmd.report.acrosswind import across_wind_section
 from tmd.report.comfort import comfort_limits
@@ -94,17 +92,16 @@ def comfort_caption(shown, hidden, responses) -> str:
     return text
 
 
-def render_report(case: Case, results: dict, *, dpi: int = 150,
+def render_report(results: dict, *, dpi: int = 150,
                   wind_spectrum: tuple | None = None,
                   on_step: StepCallback = quiet_step) -> dict[str, bytes]:
     """Return the HTML report, its figures (PNG) and key tables (CSV) for one job's results.
 
     Parameters
     ----------
-    case : tmd.case.Case
-        The case the results came from (figures are recomputed from it).
     results : dict
-        The results.json content of the job (design or comparison).
+        The results.json content of the job (design or comparison); the
+        report renders it alone, its curves from ``figure_series``.
     dpi : int
         Resolution of the PNG figures [dots per inch].
     wind_spectrum : (frequency_hz, psd_m2_s2_per_hz, label), optional
@@ -117,17 +114,18 @@ def render_report(case: Case, results: dict, *, dpi: int = 150,
     dict of str -> bytes
         ``report.html``, ``figures/<name>.png`` and ``tables/<name>.csv``.
     """
-    report = _Report(case, results, dpi, wind_spectrum, on_step)
+    report = _Report(results, dpi, wind_spectrum, on_step)
     return report.files()
 
 
 class _Report:
     """Builds sections, figures and tables in document order."""
 
-    def __init__(self, case, results, dpi, wind_spectrum, on_step):
-        self.case, self.results, self.dpi = case, results, dpi
+    def __init__(self, results, dpi, wind_spectrum, on_step):
+        self.results, self.dpi = results, dpi
         self.wind_spectrum, self.on_step = wind_spectrum, on_step
-        self.load = loaded_mode_of(case)
+        self.series = results["figure_series"]
+        self.structure_frequency_hz = float(self.series["structure_frequency_hz"])
         self.design = results.get("design")
         self.target = float(results["target"]["peak_acceleration_m_s2"])
         self.tables: list[Table] = []
@@ -168,7 +166,7 @@ class _Report:
             sections.append(self.options_section())
         sections.append(self.cautions_section())
         self._step("html")
-        name = self.results.get("case", {}).get("name", self.case.name)
+        name = self.results["case"]["name"]
         lead = (f"Prepared with tmd {self.results.get('tool_version', '')} "
                 f"(results schema {self.results.get('schema_version', '')}). "
                 "Preliminary sizing: read the cautions in the last section.")
@@ -245,13 +243,15 @@ class _Report:
 
     def bare_section(self) -> Section:
         r = self.results
-        f, s_f = series.force_spectrum_curve(self.load)
+        spectrum = self.series["force_spectrum"]
+        f = np.asarray(spectrum["frequency_hz"], dtype=float)
+        s_f = np.asarray(spectrum["force_psd_n2_per_hz"], dtype=float)
         wind = {}
         if self.wind_spectrum is not None:
             wind = dict(zip(("wind_frequency_hz", "wind_psd_m2_s2_per_hz", "wind_label"),
                             self.wind_spectrum, strict=True))
         self._step("force_spectrum")
-        ax = plots.plot_force_spectrum(f, s_f, structure_frequency_hz=self.load.mode.frequency_hz,
+        ax = plots.plot_force_spectrum(f, s_f, structure_frequency_hz=self.structure_frequency_hz,
                                        **wind)
         blocks = [self._figure("force_spectrum", ax, "Modal force spectrum of the design load "
                                "(one-sided, N²/Hz); the dotted line marks the structure "
@@ -337,8 +337,7 @@ class _Report:
         robust = self.results.get("band_design") or {}
         if robust.get("frequency_band") is not None:
             return float(robust["frequency_band"]), "the robust design's frequency band"
-        stated = self.results["case"].get("inputs", {}).get("robustness", {}).get(
-            "frequency_band")
+        stated = self.results.get("frequency_band", self.results.get("options_frequency_band"))
         if stated is not None:
             return float(stated), "the case's frequency band"
         return FREQUENCY_BAND, "default band; state [robustness] frequency_band"
@@ -346,13 +345,13 @@ class _Report:
     def _response_figures(self) -> list:
         r, design = self.results, self.design
         self._step("frequency_response")
-        h = series.acceleration_frequency_response(self.load, design)
+        h = series.response_curves(self.series["response"])
         out = [self._figure("frequency_response", plots.plot_frequency_response(
             h.frequency_hz, h.bare, h.damped),
             "Acceleration at the evaluation height per unit modal force, "
             + ("bare and with the damper." if design else "bare building (no damper specified)."))]
         self._step("acceleration_psd")
-        p = series.acceleration_psd(self.load, design)
+        p = series.acceleration_psd(h)
         bare = r["bare"]
         ax = plots.plot_acceleration_psd(
             p.frequency_hz, p.bare, p.damped, bare_sigma_m_s2=bare["sigma_acceleration_m_s2"],
@@ -363,16 +362,14 @@ class _Report:
                                 "|H_a|² S_F under the design load; rms and peak from the "
                                 "results."))
         self._step("mass_ratio")
-        settings = self.case.damper
-        grid = series.mass_ratio_grid(settings.max_mass_ratio,
-                                      design and design["mass_ratio"])
-        study = series.mass_ratio_study(self.load, grid, objective=settings.objective,
-                                        max_stroke_m=settings.max_stroke_m)
+        study = self.series["mass_ratio_study"]
         ax = plots.plot_mass_ratio_study(
-            study.mass_ratio, study.peak_acceleration_m_s2, study.peak_stroke_m,
+            *(np.asarray(study[key], dtype=float)
+              for key in ("mass_ratio", "peak_acceleration_m_s2", "peak_stroke_m")),
             target_peak_m_s2=self.target, chosen_mass_ratio=design and design["mass_ratio"],
             chosen_peak_m_s2=design and design["peak_acceleration_m_s2"],
-            chosen_stroke_m=design and design["peak_stroke_m"], max_stroke_m=settings.max_stroke_m)
+            chosen_stroke_m=design and design["peak_stroke_m"],
+            max_stroke_m=study.get("max_stroke_m"))
         out.append(self._figure("mass_ratio", ax, "Peak acceleration and peak stroke of the "
                                 "best-tuned TMD at each mass ratio (same objective and stroke "
                                 "limit as the case's design)"
@@ -381,7 +378,7 @@ class _Report:
 
     def comfort_section(self) -> Section:
         self._step("comfort")
-        responses = series.comfort_responses(self.results, self.load.mode.frequency_hz)
+        responses = series.comfort_responses(self.results, self.structure_frequency_hz)
         shown, hidden = series.matching_limits(comfort_limits(), responses)
         ax = plots.plot_comfort_chart(
             shown, responses, target_peak_m_s2=self.target,
@@ -447,9 +444,10 @@ class _Report:
         nominal = series.sweep_from_results(r["sweep"])
         bare = series.sweep_from_results(r["sweep_bare"])
         band = self._band()[0]
-        robust = r.get("band_design")
-        robust_curve = (series.detuned_sweep(self.load, robust, nominal.structure_frequency_factor)
-                        if robust else None)
+        robust = self.series.get("band_design_sweep")
+        robust_curve = series.Sweep(
+            np.asarray(robust["structure_frequency_factor"], dtype=float),
+            np.asarray(robust["peak_acceleration_m_s2"], dtype=float)) if robust else None
         bare_on_grid = np.interp(nominal.structure_frequency_factor,
                                  bare.structure_frequency_factor, bare.peak_acceleration_m_s2)
         ax = plots.plot_detuning_sweep(

@@ -5,7 +5,7 @@ callback and never print; the CLI passes the callback this context manager
 yields::
 
     with progress_bar("Writing the report") as on_step:
-        files = render_report(case, results, on_step=on_step)
+        files = render_report(results, on_step=on_step)
 """
 
 from __future__ import annotations
