@@ -18,7 +18,8 @@ from tmd.case import read_case
 from tmd.jobs import design_job
 from tmd.outputs import to_json
 
-HARBOUR = "cases/harbourline_residences.toml"  # bare peak 0.212505 m/s^2; no [robustness]
+# bare peak 0.212505 m/s^2; no [robustness]
+HARBOUR = Path(__file__).resolve().parents[1] / "cases" / "harbourline_residences.toml"
 
 
 def _design(target, max_mass_ratio=None):
@@ -175,3 +176,25 @@ def test_wind_model_loads_need_no_cut_off_and_a_users_table_keeps_its_warning(de
     harbour = design_results(cases / "harbourline_residences.toml")
     edge = [w for w in harbour["warnings"] if "top decade" in w]
     assert edge and all("harbourline_force.csv" in w for w in edge)
+
+
+def test_a_stroke_over_the_limit_at_another_return_period_warns(kestrel_case):
+    # The stroke limit binds at the target's return period only; a longer one
+    # whose peak stroke exceeds it gets a StrokeLimitWarning naming it (README,
+    # "end_stops"). Limit set between the 1-year and the 50-year peak strokes.
+    from tmd.dampers.tuned_mass import TunedMassDamper
+    from tmd.design import evaluate_tmd
+    from tmd.endstops import StrokeLimitWarning
+    from tmd.jobs import by_return_period, loaded_mode_of
+    from tmd.jobs.shared import extreme_checks
+
+    damper = TunedMassDamper(0.02, 0.98, 0.07)
+    design = evaluate_tmd(loaded_mode_of(kestrel_case), damper)
+    strokes = {row["return_period_years"]: row["design"]["peak_stroke_m"]
+               for row in by_return_period(kestrel_case, design)}
+    limit = 0.5 * (strokes[1.0] + strokes[50.0])
+    case = dataclasses.replace(kestrel_case, damper=dataclasses.replace(
+        kestrel_case.damper, max_stroke_m=limit))
+    rows = by_return_period(case, design)
+    with pytest.warns(StrokeLimitWarning, match=r"50-year.*exceeds"):
+        extreme_checks(case, design, rows)

@@ -48,3 +48,22 @@ def test_non_finite_engine_input_is_a_numerical_failure_naming_it():
     with pytest.raises(NonFiniteResult, match=r"damping_ratio = nan") as err:
         assess(0.2, 1e7, np.array([0.01, np.nan]), Absorbers.none((2,)), WhiteSpectrum(1e9), 600)
     assert isinstance(err.value, NumericalFailure) and not isinstance(err.value, ValueError)
+
+
+def test_a_load_cut_off_above_the_mode_warns_of_its_upper_edge():
+    # Far above resonance |H_a| -> 1/M* (common practice), so under a flat force
+    # spectrum the acceleration keeps a flat PSD up to the table's last frequency:
+    # the top decade (0.5-5 Hz) carries far more than 1% of the variance and of
+    # the second moment, and the peak factor depends on the cut-off.
+    from tmd.notes import LoadWarning, about
+    from tmd.performance import UpperEdgeWarning
+
+    f = np.geomspace(0.01, 5.0, 200)
+    load = LoadedMode(Mode(0.2, 1e7, 0.01), TabulatedSpectrum(f, np.full(f.size, 1e8)), 600.0)
+    with about("a flat load"), pytest.warns(
+            UpperEdgeWarning, match=r"^a flat load: .*% of the acceleration's second moment .*"
+                                    r"top decade of the load spectrum \(up to 5 Hz"):
+        evaluate_tmd(load, TunedMassDamper(0.02, 0.98, 0.07))  # an evaluation that warns
+    # Every load warning names its load first (tmd.notes.LoadWarning); here the base class.
+    with about("a flat load"), pytest.warns(LoadWarning, match=r"^a flat load: "):
+        evaluate_tmd(load, TunedMassDamper(0.02, 0.98, 0.07))

@@ -1,5 +1,7 @@
 """The spectral response engine against closed forms, Lyapunov and adaptive quadrature."""
 
+from pathlib import Path
+
 import numpy as np
 import pytest
 from scipy.integrate import quad
@@ -255,7 +257,8 @@ def test_issue_example_narrow_peak_in_the_demo_table():
     # engine gave an rms acceleration 56% low. Reference: quad with breakpoints.
     from tmd.spectra import read_force_psd_csv
 
-    table = read_force_psd_csv("cases/harbourline_force.csv")
+    table = read_force_psd_csv(Path(__file__).resolve().parents[1] / "cases"
+                               / "harbourline_force.csv")
     spec = _with_narrow_peak(table.frequency_hz, table.psd_n2_per_hz, 0.1705, 1e-4)
     fs, mass, zs = 0.17, 1.9e7, 0.012
     r = spectral_response(fs, mass, zs, Absorbers.none(), spec)

@@ -77,3 +77,36 @@ def test_simulated_peak_loop_converges_on_the_demo(tmp_path):
 def test_a_fractile_needs_the_simulated_method(tmp_path):
     with pytest.raises(CaseError, match="peak_fractile"):
         read_case(_variant(tmp_path, "peak_fractile = 0.8\n"))
+
+
+def test_a_loop_that_does_not_settle_stops_and_warns(monkeypatch):
+    # A simulated peak alternately 30% above and below the spectral one keeps the
+    # corrected target, hence the least mass, moving: the loop must stop after
+    # MAX_ITERATIONS passes and say so (SimulatedPeakWarning).
+    import tmd.simulated_sizing as simulated
+    from tmd.design import LoadedMode, bare_response, least_mass
+    from tmd.simulation import SimulationSettings
+    from tmd.spectra import FirstOrderSpectrum
+    from tmd.structure import Mode
+
+    passes = []
+
+    def alternating(load, design, settings, period_s, fractile=None):
+        passes.append(design.mass_ratio)
+        return design.peak_acceleration_m_s2 * (1.3 if len(passes) % 2 else 0.7)
+
+    monkeypatch.setattr(simulated, "simulated_peak", alternating)
+    load = LoadedMode(Mode(0.2, 1e7, 0.01), FirstOrderSpectrum(1e8, 0.3), 600.0)
+    # Met by 2.3% of M*; the corrected targets then alternate between masses of about
+    # 0.3% and 8.5%, inside max_mass_ratio, so no limit holds the mass still.
+    target = 0.5 * bare_response(load).peak_acceleration_m_s2
+
+    def size_at(t):
+        return least_mass(load, t, max_mass_ratio=0.2)
+
+    with pytest.warns(simulated.SimulatedPeakWarning,
+                      match=rf"stopped after {MAX_ITERATIONS} passes with the mass ratio still "
+                            "changing"):
+        _, steps = simulated.size_for_simulated_peak(load, target, size_at,
+                                                     SimulationSettings(records=10))
+    assert len(steps) == MAX_ITERATIONS == len(passes)

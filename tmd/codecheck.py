@@ -80,6 +80,45 @@ def size_reduction(eta):
     return averaged_exponential(eta)
 
 
+def reduced_frequency(frequency_hz, length_scale_m, mean_speed_m_s):
+    """Dimensionless frequency f_L = n_1 L(z_s) / v_m(z_s) (EN 1991-1-4 eq. B.2).
+
+    Parameters
+    ----------
+    frequency_hz : float
+        n_1 [Hz].
+    length_scale_m : float
+        L(z_s) [m].
+    mean_speed_m_s : float
+        v_m(z_s) [m/s].
+
+    Returns
+    -------
+    float
+    """
+    return frequency_hz * length_scale_m / mean_speed_m_s
+
+
+def size_reduction_arguments(height_m, breadth_m, reduced_frequency_value, length_scale_m):
+    """eta_h = 4.6 h f_L / L(z_s) and eta_b = 4.6 b f_L / L(z_s) (EN 1991-1-4 eq. B.7, B.8).
+
+    Parameters
+    ----------
+    height_m, breadth_m : float
+        h, b [m].
+    reduced_frequency_value : float
+        f_L [-] (:func:`reduced_frequency`).
+    length_scale_m : float
+        L(z_s) [m].
+
+    Returns
+    -------
+    eta_h, eta_b : float
+    """
+    scale = 4.6 * reduced_frequency_value / length_scale_m
+    return height_m * scale, breadth_m * scale
+
+
 def resonance_factor_sq(log_decrement, reduced_spectrum, reduction_height, reduction_breadth):
     """Return the resonance response factor R^2 [-] (EN 1991-1-4 eq. B.6).
 
@@ -347,9 +386,9 @@ def annex_b(*, height_m, breadth_m, force_coefficient, frequency_hz, equivalent_
     delta_a = float(aerodynamic_log_decrement(force_coefficient, air_density_kg_m3, breadth_m,
                                               mean_speed_m_s, frequency_hz, equivalent_mass_kg_m))
     delta = structural_log_decrement + delta_a + damper_log_decrement
-    f_l = frequency_hz * length_scale_m / mean_speed_m_s
-    r_h = float(size_reduction(4.6 * height_m * f_l / length_scale_m))
-    r_b = float(size_reduction(4.6 * breadth_m * f_l / length_scale_m))
+    f_l = reduced_frequency(frequency_hz, length_scale_m, mean_speed_m_s)
+    eta_h, eta_b = size_reduction_arguments(height_m, breadth_m, f_l, length_scale_m)
+    r_h, r_b = float(size_reduction(eta_h)), float(size_reduction(eta_b))
     b2 = background_factor_sq(breadth_m, height_m, length_scale_m)
     r2 = resonance_factor_sq(delta, float(eurocode_reduced(f_l)), r_h, r_b)
     nu = upcrossing_frequency(frequency_hz, b2, r2)

@@ -111,13 +111,55 @@ def test_admittance_option_by_hand():
     assert float(got[0]) / (a * 25.0) ** 2 == pytest.approx(0.25, rel=1e-12)
 
 
+def _continuous_strip_integral(f, decay_vertical=10.0, nodes=160):
+    """S_F(f) = int int phi a sqrt(S_u) (z1) phi a sqrt(S_u) (z2) coh dz1 dz2 of the tower.
+
+    The quasi-steady strip loading (Davenport 1962) as a continuous double
+    integral over the height, a(z) = rho C_d b U(z), with vertical root-coherence
+    exp(-f C_z |z1 - z2| / U_pair), U_pair the mean of the two speeds. It is
+    evaluated here by a Gauss-Legendre product rule on the triangle z2 < z1
+    (twice, by symmetry), so that the kink on the diagonal is an edge: no
+    strips, independently of the library's strip sums.
+    """
+    h = TOWER.height_m
+    x, w = np.polynomial.legendre.leggauss(nodes)
+    z1, w1 = h * (x[:, None] + 1) / 2, w[:, None] * h / 2
+    z2 = z1 * (x[None, :] + 1) / 2
+    w2 = w[None, :] * z1 / 2
+
+    def weight(z):
+        u = SITE.mean_speed(z, 1.0)
+        root_psd = np.sqrt(velocity_spectrum(SITE, z, f, 1.0, "eurocode"))
+        return ((z / h) * SITE.air_density_kg_m3 * TOWER.drag_coefficient * TOWER.breadth_m
+                * u * root_psd), u
+
+    a1, u1 = weight(z1)
+    a2, u2 = weight(z2)
+    coherence = np.exp(-f * decay_vertical * np.abs(z1 - z2) / (0.5 * (u1 + u2)))
+    return 2.0 * float(np.sum(w1 * w2 * a1 * a2 * coherence))
+
+
 def test_modal_force_spectrum_is_a_cheap_table():
-    spectrum = modal_force_spectrum(SITE, TOWER, 1.0)
+    # The table, evaluated anywhere, gives the strip loading's values: against
+    # the continuous double integral (above) at frequencies between the table's
+    # nodes, within 5e-4 at 40 strips (the strips' discretisation: measured
+    # 2.2e-4, 1e-4 at 80 strips), and against the strip sum evaluated directly
+    # at those frequencies within 1e-4 (log-log interpolation between nodes
+    # 2.9 % apart: measured 6e-5).
+    spectrum = modal_force_spectrum(SITE, TOWER, 1.0, coherence="exponential-vertical")
     assert isinstance(spectrum, TabulatedSpectrum)
-    f = np.geomspace(0.05, 2.0, 300)[:, None] * np.ones((1, 1000))  # 300k points
-    assert spectrum(f).shape == f.shape
+    f = np.array([0.05, 0.2, 0.6, 1.5])
+    reference = np.array([_continuous_strip_integral(fk) for fk in f])
+    np.testing.assert_allclose(spectrum(f), reference, rtol=5e-4)
+    direct = modal_force_spectrum(SITE, TOWER, 1.0, coherence="exponential-vertical",
+                                  frequency_hz=f)
+    np.testing.assert_allclose(spectrum(f), direct(f), rtol=1e-4)
+    grid = np.geomspace(0.05, 2.0, 300)[:, None] * np.ones((1, 1000))  # 300k points at once
+    np.testing.assert_array_equal(spectrum(grid)[:, 0], spectrum(grid[:, 0]))
     f_ref, s_ref = reference_wind_spectrum(SITE, TOWER, 1.0)
-    assert s_ref.shape == f_ref.shape
+    z_s = 0.6 * TOWER.height_m  # EN 1991-1-4 Fig. 6.1: z_s = 0.6 h
+    np.testing.assert_allclose(s_ref, velocity_spectrum(SITE, z_s, f_ref, 1.0, "eurocode"),
+                               rtol=1e-12)
 
 
 def test_default_table_continues_as_its_asymptotic_power_law():
