@@ -18,7 +18,9 @@ from tmd.compare import compare_options
 from tmd.dampers.tuned_mass import TunedMassDamper
 from tmd.design import LoadedMode, least_mass, tune
 from tmd.errors import InputError
+from tmd.loads import Building
 from tmd.robust import design_sweeps
+from tmd.robust.probabilistic import Uncertainty
 from tmd.rules import PLAUSIBLE, Ratio, require
 from tmd.spectra import WhiteSpectrum
 from tmd.structure import Mode
@@ -89,3 +91,22 @@ def test_plausibility_ranges_are_the_documented_ones():
     readme = (CASES.parent / "README.md").read_text()
     for row in ("10 to 80 m/s", "0.5 to 2", "0.5 to 10,000 years", "0.01 to 10 Hz", "1e-4 to 0.3"):
         assert row in readme
+
+
+@pytest.mark.parametrize("old, new, make", [
+    ("frequency_cov = 0.07", "frequency_cov = 0.0", lambda: Uncertainty(0.0)),
+    ("seed = 1\n", "seed = -1\n", lambda: Uncertainty(0.07, seed=-1)),
+    ("damping_cov = 0.3", "damping_cov = 1.5", lambda: Uncertainty(0.07, 1.5)),
+    ("height_m = 190.0", "height_m = -190.0", lambda: Building(-190.0, 32.0, 32.0, 1.3)),
+])
+def test_one_rule_for_the_case_table_and_the_library_object(tmp_path, old, new, make):
+    # Issue 15: [robustness.probabilistic] and Uncertainty, [building] and Building
+    # validate a field by the same rule of tmd.rules, so the words are the same.
+    text = (CASES / "kestrel_point.toml").read_text()
+    assert old in text
+    (tmp_path / "c.toml").write_text(text.replace(old, new))
+    with pytest.raises(CaseError) as case:
+        read_case(tmp_path / "c.toml")
+    with pytest.raises(InputError) as library:
+        make()
+    assert str(case.value).endswith(str(library.value)), (str(case.value), str(library.value))

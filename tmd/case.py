@@ -45,10 +45,13 @@ from tmd.rules import (
     Duration,
     InputError,
     ModeFrequency,
+    NonNegativeRatio,
     Orography,
     Positive,
     Ratio,
     ReturnPeriod,
+    SampleCount,
+    Seed,
     Speed,
     StructuralDamping,
     describe_error,
@@ -191,14 +194,17 @@ class WindTable(_Table):
 
 
 class ProbabilisticTable(_Table):
-    """The case file's ``[robustness.probabilistic]`` table (keys in README)."""
+    """The case file's ``[robustness.probabilistic]`` table (keys in README).
+
+    Its rules are those tmd.robust.probabilistic.Uncertainty checks the same fields by.
+    """
 
     frequency_cov: Ratio
-    damping_cov: Annotated[float, Field(ge=0, lt=1, allow_inf_nan=False)] = 0.0
+    damping_cov: NonNegativeRatio = 0.0
     distribution: Literal["normal", "lognormal"] = "lognormal"
     exceedance_probability: Ratio | None = None
-    seed: Annotated[int, Field(ge=0)] = 1
-    sample_count: Annotated[int, Field(ge=100, le=1_000_000)] = 20000
+    seed: Seed = 1
+    sample_count: SampleCount = 20000
 
 
 class RobustnessTable(_Table):

@@ -31,6 +31,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from tmd.rules import Positive, require
 from tmd.spectra import TabulatedSpectrum
 from tmd.wind.coherence import (
     DECAY_LATERAL,
@@ -64,8 +65,8 @@ _GAUSS_WEIGHTS = 0.5 * _GAUSS_WEIGHTS
 
 
 def _positive(name, value):
-    if not (isinstance(value, int | float) and math.isfinite(value) and value > 0):
-        raise ValueError(f"{name} = {value!r}; must be a finite number > 0")
+    # The rule of the case file's [building] table (tmd.rules.Positive): same words.
+    require(name, value, Positive)
 
 
 @dataclass(frozen=True)

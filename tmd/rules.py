@@ -151,6 +151,12 @@ SweepRange = Annotated[float, Field(gt=0, lt=0.6, strict=True, allow_inf_nan=Fal
 # f_d / f_s of a given (proposed or as-built) damper; tuning searches 0.5 to 1.5.
 FrequencyRatio = Annotated[float, Field(gt=0, le=5, strict=True, allow_inf_nan=False)]
 Band = Annotated[float, Field(ge=0, lt=0.5, strict=True, allow_inf_nan=False)]
+# A ratio that may be zero: a coefficient of variation that may vanish (the damping's:
+# 0 keeps it fixed), the shape parameter of EN 1991-1-4's c_prob.
+NonNegativeRatio = Annotated[float, Field(ge=0, lt=1, strict=True, allow_inf_nan=False)]
+Seed = Annotated[int, Field(ge=0, strict=True)]
+# Samples of a sampling estimate of a probability (its standard error falls as 1/sqrt(n)).
+SampleCount = Annotated[int, Field(ge=100, le=1_000_000, strict=True)]
 
 # Plausible inputs of a case or an option.
 Speed = PLAUSIBLE["speed"].field()

@@ -70,6 +70,7 @@ from tmd.defaults import MAX_MASS_RATIO
 from tmd.design import LoadedMode, TmdDesign, evaluate_tmd, tune
 from tmd.performance import assess
 from tmd.robust.sweeps import StructureDamping, structure_damping_ratios
+from tmd.rules import NonNegativeRatio, Ratio, SampleCount, Seed, require
 from tmd.schema import design_block
 
 NORMAL_FLOOR = 0.02      # smallest factor a normal variable is allowed to take
@@ -185,13 +186,14 @@ class Uncertainty:
 
     def __post_init__(self):
         object.__setattr__(self, "distribution", Distribution(self.distribution))
-        if not self.frequency_cov > 0:
-            raise ValueError(f"frequency_cov must be > 0, got {self.frequency_cov!r}")
-        if not self.damping_cov >= 0:
-            raise ValueError(f"damping_cov must be >= 0, got {self.damping_cov!r}")
-        p = self.exceedance_probability
-        if p is not None and not 0 < p < 1:
-            raise ValueError(f"exceedance_probability must lie in (0, 1), got {p!r}")
+        # The case file's [robustness.probabilistic] table uses the same rules (tmd.rules),
+        # so a value is refused with the same words from either.
+        require("frequency_cov", self.frequency_cov, Ratio)
+        require("damping_cov", self.damping_cov, NonNegativeRatio)
+        if self.exceedance_probability is not None:
+            require("exceedance_probability", self.exceedance_probability, Ratio)
+        require("seed", self.seed, Seed)
+        require("sample_count", self.sample_count, SampleCount)
         if self.inner_points < 5 or self.damping_nodes < 2:
             raise ValueError(f"inner_points must be >= 5 and damping_nodes >= 2, got "
                              f"{self.inner_points!r} and {self.damping_nodes!r}")

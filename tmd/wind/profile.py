@@ -23,6 +23,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from tmd.rules import NonNegativeRatio, Positive, Ratio, require
+
 # EN 1991-1-4 Table 4.1: roughness length z0 [m] and minimum height z_min [m].
 TERRAIN_CATEGORIES: dict[str, tuple[float, float]] = {
     "0": (0.003, 1.0),
@@ -186,10 +188,10 @@ def _check_heights(height_m, minimum=0.0, maximum=MAXIMUM_HEIGHT_M, name="height
 
 
 def _check_positive(name, value, *, allow_none=False):
+    # The rule of the case file's [wind] table (tmd.rules.Positive): same words.
     if value is None and allow_none:
         return
-    if value is None or not (math.isfinite(value) and value > 0):
-        raise ValueError(f"{name} = {value!r}; must be a finite number > 0")
+    require(name, value, Positive)
 
 
 @dataclass(frozen=True)
@@ -282,11 +284,7 @@ class Site:
                 )
             _check_heights(self.reference_height_m, name="reference_height_m")
             _check_positive("reference_mean_speed_m_s", self.reference_mean_speed_m_s)
-            if not 0 < self.reference_turbulence_intensity < 1:
-                raise ValueError(
-                    f"reference_turbulence_intensity = {self.reference_turbulence_intensity!r}; "
-                    "must lie in (0, 1)"
-                )
+            require("reference_turbulence_intensity", self.reference_turbulence_intensity, Ratio)
             _check_positive("reference_return_period_years", self.reference_return_period_years)
             if self.orography_factor != 1.0 or self.turbulence_factor != 1.0:
                 raise ValueError(
@@ -296,11 +294,8 @@ class Site:
         for name in ("orography_factor", "turbulence_factor", "air_density_kg_m3"):
             _check_positive(name, getattr(self, name))
         _check_positive("probability_exponent", self.probability_exponent)
-        if not 0 <= self.probability_shape_parameter < 1:
-            raise ValueError(
-                f"probability_shape_parameter = {self.probability_shape_parameter!r}; "
-                "must lie in [0, 1)"
-            )
+        require("probability_shape_parameter", self.probability_shape_parameter,
+                NonNegativeRatio)
 
     @property
     def is_direct(self) -> bool:
