@@ -93,3 +93,38 @@ def test_bad_csv_row_is_named(tmp_path):
     (tmp_path / "force.csv").write_text("frequency_hz,psd_n2_per_hz\n0.1,1\n0.2,-1\n")
     with pytest.raises(CaseError, match=r"force\.csv: line 3: psd_n2_per_hz = -1\.0"):
         read_case(path)
+
+
+def test_reading_a_wind_case_validates_and_leaves_the_spectra_to_the_job(monkeypatch):
+    # Issue 15: case.py validates; the wind spectra are computed when a job first
+    # asks for the case's loads (tmd.wind_loads), not while the file is read.
+    import tmd.wind_loads
+
+    calls = []
+    real = tmd.wind_loads.compute_wind_loads
+
+    def counted(*args, **kwargs):
+        calls.append(args[3])
+        return real(*args, **kwargs)
+
+    monkeypatch.setattr(tmd.wind_loads, "compute_wind_loads", counted)
+    case = read_case(CASES / "kestrel_point.toml")
+    assert calls == [] and "3 return periods" in repr(case)
+    loads = case.wind_loads
+    assert calls == [(1.0, 10.0, 50.0)]
+    assert [w.return_period_years for w in loads] == [1.0, 10.0, 50.0]
+    assert case.spectrum is case.design_wind_load.spectrum and case.wind_loads is loads
+    assert len(calls) == 1  # computed once per case
+
+
+def test_a_wind_load_that_cannot_be_computed_is_bad_input_naming_the_case(monkeypatch):
+    import tmd.wind_loads
+    from tmd.errors import InputError
+
+    def failing(*args, **kwargs):
+        raise ValueError("the strip model cannot be evaluated")
+
+    monkeypatch.setattr(tmd.wind_loads, "compute_wind_loads", failing)
+    case = read_case(CASES / "kestrel_point.toml")
+    with pytest.raises(InputError, match=r"kestrel_point\.toml: \[wind\]/\[building\]: the strip"):
+        case.wind_loads  # noqa: B018 - the access computes the loads

@@ -16,6 +16,7 @@ import difflib
 import math
 import tomllib
 from dataclasses import dataclass, field
+from functools import cached_property
 from pathlib import Path
 from typing import Annotated, Any, Literal
 
@@ -62,7 +63,7 @@ from tmd.spectra import ForceSpectrum, SpectrumFileError, read_force_psd_csv, re
 from tmd.structure import Mode
 from tmd.wind import AIR_DENSITY_KG_M3, SPECTRUM_MODELS, TERRAIN_CATEGORIES, Site, acrosswind
 from tmd.wind.boundary_layer import PROFILE_MODELS
-from tmd.wind_loads import WindLoad, compute_wind_loads
+from tmd.wind_loads import WindLoad, WindLoadRequest
 from tmd.wind_setup import (
     AirDensity,
     across_wind_block,
@@ -311,7 +312,7 @@ class DamperSettings:
     stroke_return_period_years: float | None = None  # None: the target's return period
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, repr=False)
 class Case:
     """A validated case, ready for the library.
 
@@ -329,8 +330,10 @@ class Case:
     mode : Mode
         The structural mode: frequency [Hz], modal mass M* [kg] (mode shape
         = 1 at the damper) and structural damping ratio [-].
-    spectrum : ForceSpectrum
-        One-sided modal force PSD of the design load [N^2/Hz].
+    force_spectrum : ForceSpectrum or None
+        One-sided modal force PSD of the design load [N^2/Hz]; None for a
+        wind case, whose design spectrum is computed with its loads
+        (``spectrum``).
     target_peak_m_s2 : float
         Peak acceleration target at the evaluation height [m/s^2].
     duration_s : float
@@ -347,8 +350,12 @@ class Case:
         The wind climate and terrain (wind cases).
     building : Building or None
         The building's geometry, drag and mode shape (wind cases).
-    wind_loads : tuple of WindLoad
-        One modal force spectrum per listed return period (wind cases).
+    given_wind_loads : tuple of WindLoad
+        Wind loads given ready (a normalised spectrum made dimensional);
+        ``wind_loads`` returns them.
+    wind_load_request : tmd.wind_loads.WindLoadRequest or None
+        What to compute for a wind case's loads; ``wind_loads`` computes them
+        on first use.
     target_return_period_years : float or None
         Return period of the wind the target applies to [years].
     wind_settings : dict
@@ -368,7 +375,7 @@ class Case:
     name: str
     path: Path
     mode: Mode
-    spectrum: ForceSpectrum
+    force_spectrum: ForceSpectrum | None  # None for a wind case: see ``spectrum``
     target_peak_m_s2: float
     duration_s: float
     damper: DamperSettings
@@ -377,7 +384,8 @@ class Case:
     input_files: tuple[Path, ...] = ()
     site: Site | None = None
     building: Building | None = None
-    wind_loads: tuple[WindLoad, ...] = ()
+    given_wind_loads: tuple[WindLoad, ...] = ()  # loads given ready (a normalised spectrum)
+    wind_load_request: WindLoadRequest | None = None  # loads computed when first asked for
     target_return_period_years: float | None = None
     wind_settings: dict[str, Any] = field(default_factory=dict)
     tables: CaseTable | None = None
@@ -385,6 +393,33 @@ class Case:
     direction_of_response: str = "along"  # which wind load drives the mode
     across_wind: dict[str, Any] | None = None  # across-wind model and vortex check (wind cases)
     across_notes: tuple[str, ...] = ()  # the across-wind model's own warnings and cautions
+
+    def __repr__(self) -> str:
+        m = self.mode
+        periods = (self.wind_load_request.periods_years if self.wind_load_request is not None
+                   else self.given_wind_loads)
+        load = f"wind, {len(periods)} return periods" if periods else "force spectrum"
+        return (f"Case({self.name!r}: {m.frequency_hz:g} Hz, M* {m.modal_mass_kg:.4g} kg, "
+                f"damping {m.damping_ratio:g}, {load}, target {self.target_peak_m_s2:g} m/s²)")
+
+    @cached_property
+    def wind_loads(self) -> tuple[WindLoad, ...]:
+        """Every listed return period's wind load (empty for a force-spectrum case).
+
+        A wind case's spectra are computed here, when a job first asks for them
+        (:meth:`tmd.wind_loads.WindLoadRequest.compute`), not while the case is
+        read and validated.
+        """
+        if self.wind_load_request is not None:
+            return self.wind_load_request.compute()
+        return self.given_wind_loads
+
+    @property
+    def spectrum(self) -> ForceSpectrum:
+        """The design load's modal force spectrum (the target's return period for wind)."""
+        if self.force_spectrum is not None:
+            return self.force_spectrum
+        return self.design_wind_load.spectrum
 
     @property
     def shape_factor(self) -> float:
@@ -467,7 +502,7 @@ def read_case(path: str | Path) -> Case:
         except SpectrumFileError as exc:
             raise CaseError(f"{path}: [load] force_psd_csv = {table.load.force_psd_csv!r}: "
                             f"{exc}") from None
-        return Case(spectrum=spectrum, input_files=(path.resolve(), csv_path), **common)
+        return Case(force_spectrum=spectrum, input_files=(path.resolve(), csv_path), **common)
     return _wind_case(path, table, mode, common)
 
 
@@ -483,23 +518,21 @@ def _wind_case(path: Path, table: CaseTable, mode: Mode, common: dict) -> Case:
     except ValueError as exc:
         raise CaseError(f"{path}: [building]: {exc}") from None
     periods = sorted(set(w.return_periods_years) | {table.target.return_period_years})
-    try:
-        loads = compute_wind_loads(site, building, mode, periods, spectrum=w.spectrum,
-                                   coherence=w.coherence, n_strips=w.n_strips,
-                                   aerodynamic_damping=w.aerodynamic_damping,
-                                   direction_of_response=w.direction_of_response,
-                                   air_density_kg_m3=w.air_density_kg_m3,
-                                   reference_period_years=table.target.return_period_years)
-    except ValueError as exc:
-        raise CaseError(f"{path}: [wind]/[building]: {exc}") from None
+    # What to compute, not the spectra: the jobs compute them (Case.wind_loads).
+    request = WindLoadRequest(site, building, mode, tuple(float(t) for t in periods),
+                              spectrum=w.spectrum, coherence=w.coherence, n_strips=w.n_strips,
+                              aerodynamic_damping=w.aerodynamic_damping,
+                              direction_of_response=w.direction_of_response,
+                              air_density_kg_m3=w.air_density_kg_m3,
+                              reference_period_years=table.target.return_period_years,
+                              source=str(path))
     _check_damping(path, table, mode, site, building, periods)
+    top_speed = lambda t: float(site.mean_speed(building.height_m, t))  # noqa: E731
     block, across_notes = across_wind_block(
-        building, mode.frequency_hz, periods, [x.top_mean_speed_m_s for x in loads],
-        lambda t: float(site.mean_speed(building.height_m, t)))
-    design = next(x for x in loads if x.return_period_years == table.target.return_period_years)
+        building, mode.frequency_hz, periods, [top_speed(t) for t in periods], top_speed)
     tail = (acrosswind.TAIL_NOTE,) if w.direction_of_response == "across" else ()
-    return Case(spectrum=design.spectrum, input_files=(path.resolve(),), site=site,
-                building=building, wind_loads=loads,
+    return Case(force_spectrum=None, input_files=(path.resolve(),), site=site,
+                building=building, wind_load_request=request,
                 target_return_period_years=table.target.return_period_years,
                 wind_settings=w.model_dump(), direction_of_response=w.direction_of_response,
                 across_wind=block, across_notes=(*site_notes, *across_notes, *tail), **common)
@@ -545,8 +578,8 @@ def _normalised_case(path: Path, table: CaseTable, mode: Mode, common: dict) -> 
     block, across_notes = across_wind_block(building, mode.frequency_hz, periods, tops, speed_of)
     block["normalised_rms_coefficient"] = normalised.rms_coefficient()
     design = next(x for x in loads if x.return_period_years == table.target.return_period_years)
-    return Case(spectrum=design.spectrum, input_files=(path.resolve(), csv_path), site=site,
-                building=building, wind_loads=loads,
+    return Case(force_spectrum=design.spectrum, input_files=(path.resolve(), csv_path),
+                site=site, building=building, given_wind_loads=loads,
                 target_return_period_years=table.target.return_period_years,
                 wind_settings=w.model_dump() if w is not None else {}, across_wind=block,
                 across_notes=(*site_notes, *across_notes), **common)

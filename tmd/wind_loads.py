@@ -12,6 +12,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+from tmd.errors import InputError
 from tmd.loads import (
     Building,
     aerodynamic_damping_ratio,
@@ -130,3 +131,62 @@ def compute_wind_loads(site: Site, building: Building, mode: Mode, periods_years
                 if aerodynamic_damping else 0.0)
         loads.append(WindLoad(period, force, aero, float(site.mean_speed(z_s, period)), top))
     return tuple(loads)
+
+
+@dataclass(frozen=True)
+class WindLoadRequest:
+    """The validated inputs of a case's wind loads: what to compute, not yet computed.
+
+    :mod:`tmd.case` validates and builds the request; the loads are computed
+    when a job first asks for them (``Case.wind_loads``), so that reading a
+    case computes no spectrum.
+
+    Parameters
+    ----------
+    site, building, mode
+        As for :func:`compute_wind_loads`.
+    periods_years : tuple of float
+        Return periods [years], increasing.
+    spectrum, coherence, n_strips, aerodynamic_damping, direction_of_response, air_density_kg_m3, \
+reference_period_years
+        As for :func:`compute_wind_loads`.
+    source : str
+        The case file, named in the message of a load that cannot be computed.
+    """
+
+    site: Site
+    building: Building
+    mode: Mode
+    periods_years: tuple[float, ...]
+    spectrum: str
+    coherence: str
+    n_strips: int
+    aerodynamic_damping: bool
+    direction_of_response: str = "along"
+    air_density_kg_m3: float | None = None
+    reference_period_years: float | None = None
+    source: str = ""
+
+    def compute(self) -> tuple[WindLoad, ...]:
+        """Compute the wind load of every return period (:func:`compute_wind_loads`).
+
+        Returns
+        -------
+        tuple of WindLoad
+
+        Raises
+        ------
+        tmd.errors.InputError
+            When the strip model cannot be evaluated for these inputs (bad
+            input: the message names the case file and its tables).
+        """
+        try:
+            return compute_wind_loads(
+                self.site, self.building, self.mode, self.periods_years, spectrum=self.spectrum,
+                coherence=self.coherence, n_strips=self.n_strips,
+                aerodynamic_damping=self.aerodynamic_damping,
+                direction_of_response=self.direction_of_response,
+                air_density_kg_m3=self.air_density_kg_m3,
+                reference_period_years=self.reference_period_years)
+        except ValueError as exc:
+            raise InputError(f"{self.source}: [wind]/[building]: {exc}") from None
