@@ -477,7 +477,63 @@ def read_case(path: str | Path) -> Case:
         With the file, field, value and what is allowed.
     """
     path = Path(path)
-    raw = _read_toml(path)
+    return _case_of(_read_toml(path), path)
+
+
+def case_from_dict(data: dict[str, Any], *, folder: str | Path = ".") -> Case:
+    """Validate a case given as a dict of tables (the case file's TOML, as Python).
+
+    Parameters
+    ----------
+    data : dict
+        The tables and keys of a case file (README "Case files").
+    folder : str or Path
+        Where relative file names in ``data`` (force spectrum CSV, profile
+        table) are looked up; messages name the case ``<dict>`` there.
+
+    Returns
+    -------
+    Case
+
+    Raises
+    ------
+    CaseError
+        With the field, value and what is allowed, as for a file.
+    """
+    if not isinstance(data, dict):
+        raise CaseError(f"a case is a dict of tables, not {type(data).__name__}")
+    return _case_of(data, Path(folder) / "<dict>")
+
+
+def case_with_spectrum(data: dict[str, Any], spectrum: ForceSpectrum) -> Case:
+    """Validate a case whose load is a force spectrum object rather than a CSV table.
+
+    Parameters
+    ----------
+    data : dict
+        The case's other tables (``name``, ``mode``, ``target``, ``damper``,
+        ``robustness``, ``options``, ...), as in a case file; no ``load``,
+        ``wind`` or ``building``.
+    spectrum : tmd.spectra.ForceSpectrum
+        The modal force PSD [N^2/Hz], one-sided.
+
+    Returns
+    -------
+    Case
+        Messages name the case ``<keywords>``.
+    """
+    if not isinstance(data, dict):
+        raise CaseError(f"a case is a dict of tables, not {type(data).__name__}")
+    given = [key for key in ("load", "wind", "building") if key in data]
+    if given:
+        raise CaseError(f"<keywords>: the load is the spectrum given; drop [{given[0]}]")
+    # The [load] table stands for the spectrum object while the tables are validated.
+    return _case_of({**data, "load": {"force_psd_csv": "<object>"}}, Path("<keywords>"),
+                    spectrum=spectrum)
+
+
+def _case_of(raw: dict[str, Any], path: Path, spectrum: ForceSpectrum | None = None) -> Case:
+    """Validate ``raw`` (the tables of the case at ``path``) and build its case."""
     try:
         table = CaseTable.model_validate(raw)
     except ValidationError as exc:
@@ -493,6 +549,9 @@ def read_case(path: str | Path) -> Case:
         description=table.description, inputs=raw, tables=table,
         notes=_unusual(path, table),
     )
+    if spectrum is not None:
+        return Case(force_spectrum=spectrum, **common | {"inputs": {k: v for k, v in raw.items()
+                                                                if k != "load"}})
     if table.load is not None and table.load.normalised_force_psd_csv is not None:
         return _normalised_case(path, table, mode, common)
     if table.load is not None:
