@@ -1,19 +1,19 @@
 """Reports built once per session (matplotlib Agg, low DPI to keep the tests fast)."""
 
 import json
-import warnings
 from pathlib import Path
 
 import pytest
 
 from tests.consistency import assert_consistent_results
-from tests.report.synthetic import DEMO_CASE, full_results
 from tmd.case import read_case
 from tmd.outputs import to_json
-from tmd.performance import UpperEdgeWarning
 from tmd.report import render_report
 
 CASES = sorted((Path(__file__).resolve().parents[2] / "cases").glob("*.toml"))
+# The demo with every section a design job writes: three return periods, a stroke
+# limit (end-stops), the band-robust design and the probabilistic study.
+FULL_CASE = Path(__file__).resolve().parents[2] / "cases" / "kestrel_point.toml"
 TEST_DPI = 40
 
 
@@ -32,12 +32,12 @@ def case_report(request, design_results):
 
 @pytest.fixture(scope="session")
 def full_report(design_results):
-    case = read_case(DEMO_CASE)
-    with warnings.catch_warnings():
-        # the demo spectrum's upper-edge note is already in results["warnings"]
-        warnings.simplefilter("ignore", UpperEdgeWarning)
-        results = full_results(case, design_results(DEMO_CASE))
-    return case, as_written(results), render_report(results, dpi=TEST_DPI)
+    """Real job output with every optional section of a design: Kestrel Point's design job."""
+    case = read_case(FULL_CASE)
+    results = as_written(design_results(FULL_CASE))
+    assert {"by_return_period", "sweep", "band_design", "probabilistic", "end_stops"} <= set(
+        results)
+    return case, results, render_report(results, dpi=TEST_DPI)
 
 
 @pytest.fixture(scope="session")

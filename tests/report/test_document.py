@@ -139,30 +139,38 @@ def test_absent_sections_are_skipped(case_report):
         assert "tables/by_return_period_bare.csv" not in files
 
 
-def test_full_results_render_every_section(full_report):
+def test_full_results_render_every_section(full_report, compare_report):
+    # Real job output: a design job with every optional section, and a comparison.
     _, results, files = full_report
     html = files["report.html"].decode("utf-8")
     for title in ("The job and the case", "Inputs and assumptions",
                   "Load and bare-building response", "Damper specification",
-                  "Occupant comfort", "Robustness", "Options", "Warnings and cautions"):
+                  "Occupant comfort", "Robustness", "Warnings and cautions"):
         assert f". {title}" in html
-    for name in ("detuning_sweep", "options", "comfort"):
+    for name in ("detuning_sweep", "comfort"):
         assert f"figures/{name}.png" in files
-    for name in ("by_return_period_bare", "by_return_period_damper", "code_check", "sweep",
-                 "sweep_bare", "sweep_damper_frequency", "sweep_damper_damping",
-                 "robust_design", "probabilistic", "options", "options_1_dampers", "retuning"):
+    for name in ("by_return_period_bare", "by_return_period_damper", "sweep", "sweep_bare",
+                 "sweep_damper_frequency", "sweep_damper_damping", "robust_design",
+                 "probabilistic", "retuning"):
         assert f"tables/{name}.csv" in files, name
-    # every key of every per-return-period entry and option reached a table cell
+    # every key of every per-return-period entry reached a table cell
     keyed = {c["attrs"]["data-key"] for c in cells_of(html) if "data-key" in c["attrs"]}
     for i, entry in enumerate(results["by_return_period"]):
         for group in ("bare", "design"):
             for key in entry[group]:
                 assert f"by_return_period.{i}.{group}.{key}" in keyed
-    for i, option in enumerate(results["options"]):
-        for key, value in option.items():
-            if not isinstance(value, list):
-                assert f"options.{i}.{key}" in keyed
     assert check_cells(html, results) > 300
+    check_self_contained(html)
+    check_pngs(files)
+    _, compared, files = compare_report
+    html = files["report.html"].decode("utf-8")
+    assert ". Options" in html and "figures/options.png" in files
+    assert "tables/options.csv" in files
+    keyed = {c["attrs"]["data-key"] for c in cells_of(html) if "data-key" in c["attrs"]}
+    for i, option in enumerate(compared["options"]):  # every number and verdict of each option
+        for key, value in option.items():
+            if isinstance(value, int | float) and not isinstance(value, str):
+                assert f"options.{i}.{key}" in keyed, (option["option"], key)
     check_self_contained(html)
     check_pngs(files)
 
