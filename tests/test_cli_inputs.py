@@ -141,35 +141,23 @@ def test_the_jobs_do_not_load_scipy_signal_until_identification_runs():
     import subprocess
     import sys
 
-    code = "import sys\nimport tmd.jobs\nprint('scipy.signal' in sys.modules)"
+    code = ("import sys\nfrom tmd.jobs import *  # noqa: F403 (every job's module)\n"
+            "print('scipy.signal' in sys.modules)")
     done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
                           check=True)
     assert done.stdout.strip() == "False"
 
 
-def test_design_names_a_case_file_that_is_not_utf8(tmp_path, monkeypatch):
-    # Issue 13, defect 16: design first asks whether the file is a whole-building
-    # case; that probe read the file as UTF-8 itself and a Latin-1 case ended in
-    # exit 1 "UnicodeDecodeError". Latin-1 encodes e-acute as the byte 0xE9
-    # (ISO/IEC 8859-1; from memory), an invalid UTF-8 continuation here.
-    monkeypatch.setattr(cli, "design_job", _never)
-    case = tmp_path / "case.toml"
-    case.write_bytes(DEMO.read_text(encoding="utf-8").replace("Harbourline", "Harbourlin\u00e9")
-                     .encode("latin-1"))
-    (tmp_path / "harbourline_force.csv").write_bytes((CASES / "harbourline_force.csv").read_bytes())
-    result = runner.invoke(app, ["design", str(case), "--out", str(tmp_path / "out")])
-    assert result.exit_code == 2, result.output
-    assert "case.toml: the case file is not UTF-8 text (byte 0xe9" in result.output
+def test_the_wind_job_does_not_load_the_sizing_stack():
+    # Issue "Speed": tmd.jobs imports each job's module on first use, so that
+    # `tmd wind` does not pay for the comparison, the sizing of every option
+    # and the robustness study (about 0.1 s of CPU; bench/bench_jobs.py).
+    import subprocess
+    import sys
 
-
-def test_a_whole_building_case_with_a_byte_order_mark_is_recognised(tmp_path):
-    # Issue 13, defect 16: a UTF-8 BOM (EF BB BF, The Unicode Standard ch. 23.8;
-    # from memory) is accepted everywhere, so it must not hide [[modes]] either.
-    from tmd.case import is_building_case
-
-    text = (CASES / "building" / "corvid_spire.toml").read_text(encoding="utf-8")
-    case = tmp_path / "case.toml"
-    case.write_bytes(b"\xef\xbb\xbf" + text.encode("utf-8"))
-    assert is_building_case(case)
-    case.write_bytes(b"\xef\xbb\xbf" + DEMO.read_bytes())
-    assert not is_building_case(case)
+    code = ("import sys\nfrom tmd.jobs import wind_job\n"
+            "print(sorted(m for m in ('tmd.compare', 'tmd.jobs.options', 'tmd.robust',"
+            " 'tmd.identify') if m in sys.modules))")
+    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                          check=True)
+    assert done.stdout.strip() == "[]"

@@ -8,13 +8,26 @@ writes, and each job has its module (``design``, ``robustness``, ``options``,
 ``wind``, ``retune``, ``simulation``).
 """
 
-from tmd.jobs.design import design_job, evaluate_job, peak_estimates, size_damper
-from tmd.jobs.options import compare_job, option_settings_of
-from tmd.jobs.retune import retune_job
-from tmd.jobs.robustness import robustness_block, robustness_settings, sweep_job
-from tmd.jobs.shared import by_return_period, loaded_mode_of, stroke_cases_of
-from tmd.jobs.simulation import simulation_job
-from tmd.jobs.wind import wind_job
+import importlib
+
+# Each job's module is imported when the job is first asked for (PEP 562), so
+# that ``tmd wind`` does not load the sizing, comparison and robustness stack.
+_HOMES = {"design_job": "design", "evaluate_job": "design", "peak_estimates": "design",
+          "size_damper": "design", "compare_job": "options", "option_settings_of": "options",
+          "retune_job": "retune", "robustness_block": "robustness",
+          "robustness_settings": "robustness", "sweep_job": "robustness",
+          "by_return_period": "shared", "loaded_mode_of": "shared",
+          "stroke_cases_of": "shared", "simulation_job": "simulation", "wind_job": "wind"}
+
+
+def __getattr__(name):
+    home = _HOMES.get(name)
+    if home is None:
+        raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
+    value = getattr(importlib.import_module(f"{__name__}.{home}"), name)
+    globals()[name] = value
+    return value
+
 
 __all__ = ["by_return_period", "compare_job", "design_job", "evaluate_job", "loaded_mode_of",
            "option_settings_of", "peak_estimates", "retune_job", "robustness_block",
