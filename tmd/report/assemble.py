@@ -3,7 +3,7 @@
 :func:`render_report` returns ``{"report.html": ..., "figures/<name>.png": ...,
 "tables/<name>.csv": ...}`` (bytes), for :func:`tmd.outputs.write_all` to write
 beside results.json. Sections appear for whatever the results hold: the wind
-(``by_return_period``, ``wind``), robustness (``sweep``, ``sweep_bare``,
+(``by_return_period``, ``across_wind``), robustness (``sweep``, ``sweep_bare``,
 ``band_design``, ``probabilistic``) and options (``options``) parts are
 rendered when present and skipped when absent.
 """
@@ -232,9 +232,6 @@ class _Report:
                "peak stroke limit is a constraint of every tuning.")
         yield ("Effective damping: the damping ratio the bare building would need for the same "
                "rms acceleration under the same load.")
-        if "wind" in self.results:
-            yield ("Code route: EN 1991-1-4:2005 Annex B (background and resonance factors, "
-                   "structural factor, along-wind acceleration B.4) beside the spectral route.")
         if self.results.get("sweep"):
             yield ("Detuning: the structure's frequency scaled by s with its modal mass held "
                    "(stiffness by s²); the damper keeps its mass, spring and dashpot.")
@@ -265,14 +262,6 @@ class _Report:
             blocks.append(self._table(by_period_table(
                 "by_return_period_bare", "Bare building per return period", bare_parts,
                 "by_return_period")))
-        wind = r.get("wind")
-        if isinstance(wind, dict) and wind.get("return_periods"):
-            blocks.append(self._table(by_period_table(
-                "code_check", "Code route (EN 1991-1-4 Annex B) beside the spectral route",
-                wind["return_periods"], "wind.return_periods")))
-        elif isinstance(wind, dict) and wind:
-            blocks.append(self._table(key_value_table("code_check", "Wind and code route",
-                                                      wind, "wind")))
         return Section("Load and bare-building response", blocks)
 
     def damper_section(self) -> Section:
