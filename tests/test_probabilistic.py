@@ -224,3 +224,30 @@ def test_probabilistic_block_keys(case, damper):
     # Designed exactly at the target at s = 1: it is exceeded for most s.
     assert 0.5 < nominal["exceedance_probability"] < 1.0
     assert nominal["sampling_standard_error"] > 0
+
+
+def test_least_mass_for_probability_holds_the_stroke_limit_at_the_stroke_load(case):
+    # Issue 11: with [damper] stroke_return_period_years the stroke limit
+    # constrains every tuning at that wind as well; here that wind is the
+    # same mode under 9x the force spectrum (a stronger return period). The
+    # limit is 80% of the unconstrained design's stroke under it, so it binds
+    # there only: the design load's own stroke stays far below it.
+    from tmd.spectra import TabulatedSpectrum
+
+    load = case.spectrum
+    extreme = LoadedMode(case.mode, TabulatedSpectrum(load.frequency_hz,
+                                                      9.0 * load.psd_n2_per_hz), 600.0)
+    unc = Uncertainty(0.07, exceedance_probability=0.10)
+
+    def stroke(loaded, design):
+        return float(np.max(loaded.assess(design.damper.absorbers(loaded.mode)).peak_stroke_m))
+
+    free = least_mass_for_probability(case, TARGET, unc, max_mass_ratio=0.2).design
+    limit = 0.8 * stroke(extreme, free)
+    assert stroke(case, free) < 0.6 * limit
+    held = least_mass_for_probability(case, TARGET, unc, max_mass_ratio=0.2,
+                                      max_stroke_m=limit, stroke_loads=(extreme,))
+    assert held.meets_probability
+    # tune keeps an active stroke limit 1e-7 inside it (tmd.design STROKE_MARGIN).
+    assert stroke(extreme, held.design) <= limit
+    assert held.design.mass_ratio > free.mass_ratio

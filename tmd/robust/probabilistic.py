@@ -265,7 +265,8 @@ class ProbabilisticSizing:
 def probabilistic_study(loaded: LoadedMode, nominal: TunedMassDamper, target_peak_m_s2: float,
                         uncertainty: Uncertainty, *, robust: TunedMassDamper | None = None,
                         max_mass_ratio: float = MAX_MASS_RATIO, max_stroke_m: float | None = None,
-                        structure_damping_ratio: StructureDamping | None = None) -> dict:
+                        structure_damping_ratio: StructureDamping | None = None,
+                        stroke_loads: tuple[LoadedMode, ...] = ()) -> dict:
     """Return the ``probabilistic`` block: exceedance probabilities and the least mass for one.
 
     Parameters
@@ -287,6 +288,9 @@ def probabilistic_study(loaded: LoadedMode, nominal: TunedMassDamper, target_pea
         Peak stroke limit [m] of the nominal tuning inside that search.
     structure_damping_ratio : callable, optional
         zeta_s(s) [-] before the damping factor e multiplies it.
+    stroke_loads : tuple of LoadedMode
+        Further loads (the wind of ``[damper] stroke_return_period_years``)
+        under which the least-mass design's tuning holds the stroke limit too.
 
     Returns
     -------
@@ -314,6 +318,7 @@ def probabilistic_study(loaded: LoadedMode, nominal: TunedMassDamper, target_pea
         s = least_mass_for_probability(loaded, target_peak_m_s2, uncertainty,
                                        max_mass_ratio=max_mass_ratio, max_stroke_m=max_stroke_m,
                                        structure_damping_ratio=structure_damping_ratio,
+                                       stroke_loads=stroke_loads,
                                        start_mass_ratio=None if nominal is None
                                        else nominal.mass_ratio)
         sized = design_block(s.design) | {
@@ -492,7 +497,8 @@ def least_mass_for_probability(loaded: LoadedMode, target_peak_m_s2: float,
                                uncertainty: Uncertainty, *, max_mass_ratio: float,
                                max_stroke_m: float | None = None, min_mass_ratio: float = 1e-4,
                                structure_damping_ratio: StructureDamping | None = None,
-                               start_mass_ratio: float | None = None) -> ProbabilisticSizing:
+                               start_mass_ratio: float | None = None,
+                               stroke_loads: tuple[LoadedMode, ...] = ()) -> ProbabilisticSizing:
     """Return the least mass whose exceedance probability is the acceptable one.
 
     Parameters
@@ -514,6 +520,10 @@ def least_mass_for_probability(loaded: LoadedMode, target_peak_m_s2: float,
     start_mass_ratio : float, optional
         Where the search starts [-], typically the nominal least mass for the
         target (warm start); without it the search brackets the whole range.
+    stroke_loads : tuple of LoadedMode
+        Further loads under which each tuning holds ``max_stroke_m`` too
+        (:func:`tmd.design.tune`), e.g. the wind of
+        ``[damper] stroke_return_period_years``.
 
     Returns
     -------
@@ -553,7 +563,7 @@ def least_mass_for_probability(loaded: LoadedMode, target_peak_m_s2: float,
         """Return the design and P at log mu = x, each evaluated once (keyed by x itself)."""
         if x not in evaluated:
             mu = math.exp(x)
-            t = tune(loaded, mu, max_stroke_m=max_stroke_m)
+            t = tune(loaded, mu, max_stroke_m=max_stroke_m, stroke_loads=stroke_loads)
             damper = TunedMassDamper(mu, t.frequency_ratio, t.damping_ratio)
             p, values = _probability(loaded, damper, target_peak_m_s2, uncertainty,
                                      structure_damping_ratio)

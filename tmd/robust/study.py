@@ -63,8 +63,10 @@ def robustness_study(loaded: LoadedMode, nominal: TunedMassDamper, target_peak_m
         sized for the band): reported as ``band_design`` instead of a new
         search.
     stroke_loads : tuple of LoadedMode
-        Further loads under which the robust design holds the stroke limit
-        too (:func:`tmd.robust.minimax.robust_least_mass`).
+        Further loads under which the robust design and the probabilistic
+        least-mass design hold the stroke limit too
+        (:func:`tmd.robust.minimax.robust_least_mass`,
+        :func:`tmd.robust.probabilistic.least_mass_for_probability`).
 
     Returns
     -------
@@ -106,7 +108,7 @@ def robustness_study(loaded: LoadedMode, nominal: TunedMassDamper, target_peak_m
             loaded, nominal, target_peak_m_s2, probabilistic,
             robust=robust.design.damper if robust and robust.design else None,
             max_mass_ratio=max_mass_ratio, max_stroke_m=max_stroke_m,
-            structure_damping_ratio=structure_damping_ratio)
+            structure_damping_ratio=structure_damping_ratio, stroke_loads=stroke_loads)
     extra = None
     if robust is not None and robust.design is not None:
         extra = robust.design.mass_kg - nominal.mass_kg(loaded.mode)
