@@ -318,3 +318,29 @@ def test_lean_assessment_equals_the_full_one_on_what_tuning_uses(tmp_path):
                 "peak_plan_stroke_m"):
         np.testing.assert_allclose(getattr(lean, key), getattr(full, key), rtol=1e-13)
     assert np.all(np.isnan(lean.peak_force_n)) and np.all(np.isnan(lean.torsional_share))
+
+
+def test_plan_stroke_limit_of_a_bidirectional_damper_holds_and_costs_mass(tmp_path):
+    # Issue 9: the tuning holds the stroke limit on each axis and on the
+    # resultant plan stroke of a bidirectional damper. A limit of 85% of the
+    # unconstrained plan stroke must bind: the design keeps its plan stroke
+    # (and each axis's stroke) under it, and needs more mass for the target.
+    _force_table(tmp_path / "fx.csv", 2.0e8)
+    _force_table(tmp_path / "ft.csv", 4.0e10, 0.35)
+
+    def run(limit_m, name):
+        path = tmp_path / f"{name}.toml"
+        path.write_text(SMALL.format(target=0.009).replace("max_stroke_m = 1.5",
+                                                           f"max_stroke_m = {limit_m!r}"))
+        result = runner.invoke(app, ["design", str(path), "--out", str(tmp_path / name)])
+        assert result.exit_code == 0, result.output
+        return json.loads((tmp_path / name / "results.json").read_text())
+
+    free = run(100.0, "free")
+    free_plan = free["dampers"][0]["peak_plan_stroke_m"]
+    limit = 0.85 * free_plan
+    held = run(limit, "held")
+    assert held["sizing"]["meets_target"]
+    assert held["dampers"][0]["peak_plan_stroke_m"] <= limit * (1 + 1e-6)  # SLSQP feasibility
+    assert all(a["peak_stroke_m"] <= limit * (1 + 1e-6) for a in held["damper_axes"])
+    assert held["sizing"]["total_mass_kg"] > free["sizing"]["total_mass_kg"]
