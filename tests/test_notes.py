@@ -73,6 +73,19 @@ def test_a_job_names_its_load():
     assert len(edge) == 1 and edge[0].startswith("design load (harbourline_force.csv):"), edge
 
 
+def test_the_retune_job_names_its_load():
+    # Issue 13, defect 15: a warning names the load it refers to; retune said
+    # "the job's load" for the design load it re-tunes under.
+    from tmd.jobs import retune_job
+    from tmd.retune import BuiltDamper
+
+    case = read_case(CASES / "harbourline_residences.toml")
+    built = BuiltDamper.of(TunedMassDamper(0.02, 0.98, 0.08), case.mode)
+    warnings_ = retune_job(case, built, 0.165)["retuned"]["warnings"]
+    edge = [w for w in warnings_ if "top decade" in w]
+    assert edge and all(w.startswith("design load (harbourline_force.csv):") for w in edge), edge
+
+
 @pytest.mark.parametrize("old, new", [("basic_speed_m_s = 30.0", "basic_speed_m_s = 60.0")])
 def test_unusual_inputs_come_first_in_the_warnings(tmp_path, old, new):
     text = (CASES / "kestrel_point.toml").read_text().replace(old, new)

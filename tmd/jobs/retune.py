@@ -50,6 +50,6 @@ def retune_job(case: Case, installed, frequency_hz: float, *, damping_ratio: flo
                           target_peak_m_s2=case.target_peak_m_s2)
         return {"retuned": r.as_dict() | {"damping_note": DAMPING_NOTE}}
 
-    result = with_notes(build)
+    result = with_notes(build, case)  # warnings name the design load it is retuned under
     result["retuned"] |= {"warnings": result.pop("warnings"), "cautions": result.pop("cautions")}
     return result
