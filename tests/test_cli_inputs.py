@@ -161,3 +161,16 @@ def test_the_wind_job_does_not_load_the_sizing_stack():
     done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
                           check=True)
     assert done.stdout.strip() == "[]"
+
+
+@pytest.mark.parametrize("command", [["compare"], ["wind"], ["evaluate", "--mass-ratio", "0.02",
+                                     "--frequency-ratio", "0.98", "--damping-ratio", "0.07"]])
+def test_a_whole_building_case_outside_design_is_named_as_such(command):
+    # Issue 13 ("exit 2 naming the wrong field"): a valid whole-building case
+    # given to a one-mode command read "mode: required key is missing; modes:
+    # unknown key; did you mean 'mode'?".
+    case = CASES / "building" / "corvid_spire.toml"
+    result = runner.invoke(app, [command[0], str(case), *command[1:]])
+    assert result.exit_code == 2, result.output
+    assert "a whole-building case ([[modes]]) is run by 'tmd design' only" in result.output
+    assert "unknown key" not in result.output

@@ -534,6 +534,10 @@ def case_with_spectrum(data: dict[str, Any], spectrum: ForceSpectrum) -> Case:
 
 def _case_of(raw: dict[str, Any], path: Path, spectrum: ForceSpectrum | None = None) -> Case:
     """Validate ``raw`` (the tables of the case at ``path``) and build its case."""
+    if "modes" in raw and "mode" not in raw:
+        # Not "mode: required key is missing; modes: unknown key" for a valid file.
+        raise CaseError(f"{path}: a whole-building case ([[modes]]) is run by 'tmd design' "
+                        "only; this command takes a one-mode case ([mode])")
     try:
         table = CaseTable.model_validate(raw)
     except ValidationError as exc:
