@@ -163,6 +163,34 @@ def test_the_wind_job_does_not_load_the_sizing_stack():
     assert done.stdout.strip() == "[]"
 
 
+def test_design_names_a_case_file_that_is_not_utf8(tmp_path, monkeypatch):
+    # Issue 13, defect 16: design first asks whether the file is a whole-building
+    # case; that probe read the file as UTF-8 itself and a Latin-1 case ended in
+    # exit 1 "UnicodeDecodeError". Latin-1 encodes e-acute as the byte 0xE9
+    # (ISO/IEC 8859-1; from memory), an invalid UTF-8 continuation here.
+    monkeypatch.setattr(cli, "design_job", _never)
+    case = tmp_path / "case.toml"
+    case.write_bytes(DEMO.read_text(encoding="utf-8").replace("Harbourline", "Harbourlin\u00e9")
+                     .encode("latin-1"))
+    (tmp_path / "harbourline_force.csv").write_bytes((CASES / "harbourline_force.csv").read_bytes())
+    result = runner.invoke(app, ["design", str(case), "--out", str(tmp_path / "out")])
+    assert result.exit_code == 2, result.output
+    assert "case.toml: the case file is not UTF-8 text (byte 0xe9" in result.output
+
+
+def test_a_whole_building_case_with_a_byte_order_mark_is_recognised(tmp_path):
+    # Issue 13, defect 16: a UTF-8 BOM (EF BB BF, The Unicode Standard ch. 23.8;
+    # from memory) is accepted everywhere, so it must not hide [[modes]] either.
+    from tmd.case import is_building_case
+
+    text = (CASES / "building" / "corvid_spire.toml").read_text(encoding="utf-8")
+    case = tmp_path / "case.toml"
+    case.write_bytes(b"\xef\xbb\xbf" + text.encode("utf-8"))
+    assert is_building_case(case)
+    case.write_bytes(b"\xef\xbb\xbf" + DEMO.read_bytes())
+    assert not is_building_case(case)
+
+
 @pytest.mark.parametrize("command", [["compare"], ["wind"], ["evaluate", "--mass-ratio", "0.02",
                                      "--frequency-ratio", "0.98", "--damping-ratio", "0.07"]])
 def test_a_whole_building_case_outside_design_is_named_as_such(command):
