@@ -172,7 +172,7 @@ def design_job(case: Case) -> dict:
     Parameters
     ----------
     case : Case
-        The validated case file (:func:`tmd.case.load_case`).
+        The validated case file (:func:`tmd.case.read_case`).
 
     Returns
     -------
@@ -289,7 +289,7 @@ def evaluate_job(case: Case, damper: TunedMassDamper) -> dict:
     Parameters
     ----------
     case : Case
-        The validated case file (:func:`tmd.case.load_case`).
+        The validated case file (:func:`tmd.case.read_case`).
     damper : TunedMassDamper
         The TMD by mass ratio, frequency ratio and damping ratio (e.g. a
         proposed or as-built damper).

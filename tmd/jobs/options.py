@@ -24,7 +24,7 @@ def option_settings_of(case: Case):
     Parameters
     ----------
     case : Case
-        The validated case file (:func:`tmd.case.load_case`).
+        The validated case file (:func:`tmd.case.read_case`).
 
     Returns
     -------
@@ -45,7 +45,7 @@ def compare_job(case: Case) -> dict:
     Parameters
     ----------
     case : Case
-        The validated case file (:func:`tmd.case.load_case`).
+        The validated case file (:func:`tmd.case.read_case`).
 
     Returns
     -------

@@ -16,7 +16,7 @@ def retune_job(case: Case, installed, frequency_hz: float, *, damping_ratio: flo
     Parameters
     ----------
     case : Case
-        The validated case file (:func:`tmd.case.load_case`).
+        The validated case file (:func:`tmd.case.read_case`).
     installed : tmd.retune.BuiltDamper
         The damper as built (from a results.json design block).
     frequency_hz : float

@@ -40,7 +40,7 @@ def robustness_settings(case: Case) -> RobustnessTable:
     Parameters
     ----------
     case : Case
-        The validated case file (:func:`tmd.case.load_case`).
+        The validated case file (:func:`tmd.case.read_case`).
 
     Returns
     -------
@@ -101,7 +101,7 @@ def size_for_band(case: Case, load: LoadedMode, band: float, worst):
     Parameters
     ----------
     case : Case
-        The validated case file (:func:`tmd.case.load_case`).
+        The validated case file (:func:`tmd.case.read_case`).
     load : LoadedMode
         The mode under its design load.
     band : float
@@ -174,7 +174,7 @@ def sweep_job(case: Case, damper: TunedMassDamper) -> dict:
     Parameters
     ----------
     case : Case
-        The validated case file (:func:`tmd.case.load_case`).
+        The validated case file (:func:`tmd.case.read_case`).
     damper : TunedMassDamper
         The TMD by mass ratio, frequency ratio and damping ratio.
 

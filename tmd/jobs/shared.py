@@ -31,7 +31,7 @@ def loaded_mode_of(case: Case, wind_load: WindLoad | None = None) -> LoadedMode:
     Parameters
     ----------
     case : Case
-        The validated case file (:func:`tmd.case.load_case`).
+        The validated case file (:func:`tmd.case.read_case`).
     wind_load : WindLoad, optional
         One return period's wind load (:mod:`tmd.wind_loads`); by default the
         case's design load.
@@ -59,7 +59,7 @@ def peak_method(case: Case) -> str:
     Parameters
     ----------
     case : Case
-        The validated case file (:func:`tmd.case.load_case`).
+        The validated case file (:func:`tmd.case.read_case`).
 
     Returns
     -------
@@ -78,7 +78,7 @@ def spectral_peak_method(case: Case) -> str:
     Parameters
     ----------
     case : Case
-        The validated case file (:func:`tmd.case.load_case`).
+        The validated case file (:func:`tmd.case.read_case`).
 
     Returns
     -------
@@ -95,7 +95,7 @@ def load_name(case: Case, wind_load: WindLoad | None = None) -> str:
     Parameters
     ----------
     case : Case
-        The validated case file (:func:`tmd.case.load_case`).
+        The validated case file (:func:`tmd.case.read_case`).
     wind_load : WindLoad, optional
         One return period's wind load (:mod:`tmd.wind_loads`); by default the
         case's design load.
@@ -150,7 +150,7 @@ def header_block(case: Case) -> dict:
     Parameters
     ----------
     case : Case
-        The validated case file (:func:`tmd.case.load_case`).
+        The validated case file (:func:`tmd.case.read_case`).
 
     Returns
     -------
@@ -188,7 +188,7 @@ def target_block(case: Case) -> dict:
     Parameters
     ----------
     case : Case
-        The validated case file (:func:`tmd.case.load_case`).
+        The validated case file (:func:`tmd.case.read_case`).
 
     Returns
     -------
@@ -212,7 +212,7 @@ def across_block(case: Case) -> dict:
     Parameters
     ----------
     case : Case
-        The validated case file (:func:`tmd.case.load_case`).
+        The validated case file (:func:`tmd.case.read_case`).
 
     Returns
     -------
@@ -235,7 +235,7 @@ def vortex_keys(case: Case, period: float) -> dict:
     Parameters
     ----------
     case : Case
-        The validated case file (:func:`tmd.case.load_case`).
+        The validated case file (:func:`tmd.case.read_case`).
     period : float
         Return period of the wind [years], one of the case's.
 
@@ -263,7 +263,7 @@ def by_return_period(case: Case, design: TmdDesign | None) -> list[dict]:
     Parameters
     ----------
     case : Case
-        The validated case file (:func:`tmd.case.load_case`).
+        The validated case file (:func:`tmd.case.read_case`).
     design : TmdDesign or None
         The design whose damper (fixed mass, frequency and damping) is
         evaluated at each return period; None for the bare building only.
@@ -308,7 +308,7 @@ def stroke_cases_of(case: Case) -> tuple[LoadedMode, ...]:
     Parameters
     ----------
     case : Case
-        The validated case file (:func:`tmd.case.load_case`).
+        The validated case file (:func:`tmd.case.read_case`).
 
     Returns
     -------
@@ -330,7 +330,7 @@ def extreme_checks(case: Case, design: TmdDesign, rows: list[dict] | None,
     Parameters
     ----------
     case : Case
-        The validated case file (:func:`tmd.case.load_case`).
+        The validated case file (:func:`tmd.case.read_case`).
     design : TmdDesign
         The design whose damper is checked at every load.
     rows : list of dict or None

@@ -26,7 +26,7 @@ def across_check(case: Case, wind_load: WindLoad) -> dict:
     Parameters
     ----------
     case : Case
-        The validated case file (:func:`tmd.case.load_case`).
+        The validated case file (:func:`tmd.case.read_case`).
     wind_load : WindLoad
         One return period's wind load (its top mean speed sets the
         across-wind spectrum).
@@ -55,7 +55,7 @@ def wind_job(case: Case) -> dict:
     Parameters
     ----------
     case : Case
-        The validated case file (:func:`tmd.case.load_case`).
+        The validated case file (:func:`tmd.case.read_case`).
 
     Returns
     -------
