@@ -61,7 +61,7 @@ from tmd.rules import (
 )
 from tmd.spectra import ForceSpectrum, SpectrumFileError, read_force_psd_csv, read_text_file
 from tmd.structure import Mode
-from tmd.wind import AIR_DENSITY_KG_M3, SPECTRUM_MODELS, TERRAIN_CATEGORIES, Site, acrosswind
+from tmd.wind import AIR_DENSITY_KG_M3, SPECTRUM_MODELS, TERRAIN_CATEGORIES, Site
 from tmd.wind.boundary_layer import PROFILE_MODELS
 from tmd.wind_loads import WindLoad, WindLoadRequest
 from tmd.wind_setup import (
@@ -593,12 +593,11 @@ def _wind_case(path: Path, table: CaseTable, mode: Mode, common: dict) -> Case:
     top_speed = lambda t: float(site.mean_speed(building.height_m, t))  # noqa: E731
     block, across_notes = across_wind_block(
         building, mode.frequency_hz, periods, [top_speed(t) for t in periods], top_speed)
-    tail = (acrosswind.TAIL_NOTE,) if w.direction_of_response == "across" else ()
     return Case(force_spectrum=None, input_files=(path.resolve(),), site=site,
                 building=building, wind_load_request=request,
                 target_return_period_years=table.target.return_period_years,
                 wind_settings=w.model_dump(), direction_of_response=w.direction_of_response,
-                across_wind=block, across_notes=(*site_notes, *across_notes, *tail), **common)
+                across_wind=block, across_notes=(*site_notes, *across_notes), **common)
 
 
 def _normalised_case(path: Path, table: CaseTable, mode: Mode, common: dict) -> Case:

@@ -32,10 +32,11 @@ class UpperEdgeWarning(LoadWarning):
     ----------
     load : str
         The load it concerns.
-    values : dict of str to float
+    values : dict
         ``share_m0`` and ``share_m2``, the largest shares of the acceleration's
         variance and second moment over the batch [-], and ``f_max_hz``, the
-        top of the load's range [Hz].
+        top of the load's range [Hz]; for a spectrum with ``edge_advice``,
+        also ``advice`` (its text) and ``peak_change_per_decade`` [-].
     """
 
     @classmethod
@@ -46,8 +47,9 @@ class UpperEdgeWarning(LoadWarning):
         ----------
         load : str
             The load it concerns.
-        values : dict of str to float
-            ``share_m0``, ``share_m2`` [-] and ``f_max_hz`` [Hz].
+        values : dict
+            ``share_m0``, ``share_m2`` [-] and ``f_max_hz`` [Hz]; optionally
+            ``advice`` and ``peak_change_per_decade`` [-].
         count : int
             How many evaluations raised it [-].
 
@@ -57,11 +59,15 @@ class UpperEdgeWarning(LoadWarning):
             One line.
         """
         designs = "one evaluation" if count == 1 else f"the worst of {count} evaluations"
+        advice = values.get("advice") or "extend the spectrum table to higher frequencies"
+        if "peak_change_per_decade" in values:
+            advice += (f"; one more decade of the same tail would raise the peak by about "
+                       f"{100 * values['peak_change_per_decade']:.2g}% (Davenport's factor)")
         return (f"{load}: {100 * values['share_m2']:.1f}% of the acceleration's second moment "
                 f"and {100 * values['share_m0']:.1f}% of its variance come from the top decade "
                 f"of the load spectrum (up to {values['f_max_hz']:g} Hz; {designs}), so the "
-                "up-crossing rate and peak factor depend on where the spectrum is cut off; "
-                "extend the spectrum table to higher frequencies")
+                f"up-crossing rate and peak factor depend on where the spectrum is cut off; "
+                f"{advice}")
 
     def key(self):
         """Kind, load and the spectrum's top frequency.
@@ -279,9 +285,19 @@ def assess(frequency_hz, modal_mass_kg, damping_ratio, absorbers: Absorbers,
               else None)
     share0, share2 = r.acceleration_top_decade
     if warn and np.any(np.maximum(share0, share2) > TOP_DECADE_WARNING):
-        warnings.warn(UpperEdgeWarning(current_load(), {
-            "share_m0": float(np.max(share0)), "share_m2": float(np.max(share2)),
-            "f_max_hz": float(spectrum.f_max_hz)}), stacklevel=2)
+        values = {"share_m0": float(np.max(share0)), "share_m2": float(np.max(share2)),
+                  "f_max_hz": float(spectrum.f_max_hz)}
+        advice = getattr(spectrum, "edge_advice", "")
+        if advice:
+            # A tail no table settles (advice given): say how much the peak would
+            # still move. One more decade of a tail that adds the top decade's m2
+            # again multiplies m2 by (1 + share) and nu by sqrt(1 + share).
+            with np.errstate(invalid="ignore", divide="ignore"):
+                g0 = davenport_peak_factor(nu_a, duration_s)
+                g1 = davenport_peak_factor(nu_a * np.sqrt(1.0 + share2), duration_s)
+                change = np.nan_to_num(g1 / g0 - 1.0)
+            values |= {"advice": advice, "peak_change_per_decade": float(np.max(change))}
+        warnings.warn(UpperEdgeWarning(current_load(), values), stacklevel=2)
     return Assessment(
         sigma_displacement_m=r.displacement.sigma if r.displacement is not None else None,
         peak_displacement_m=peak_x,

@@ -151,12 +151,17 @@ class TabulatedSpectrum:
         a model whose asymptote is known (:func:`tmd.loads.modal_force_spectrum`).
         Default None: zero above the table (a user's table ends where its
         author chose).
+    edge_advice : str
+        What the top-decade warning (:class:`tmd.performance.UpperEdgeWarning`)
+        advises for this table; empty: extend the table. A model spectrum
+        whose tail no table length can settle says so here instead.
     """
 
     frequency_hz: np.ndarray
     psd_n2_per_hz: np.ndarray
     source: str = ""
     tail_exponent: float | None = None
+    edge_advice: str = field(default="", compare=False)
     _log_f: np.ndarray = field(init=False, repr=False, compare=False)
     _log_s: np.ndarray = field(init=False, repr=False, compare=False)
 

@@ -232,7 +232,9 @@ def across_wind_spectrum(building, top_mean_speed_m_s: float, air_density_kg_m3:
     -----
     :func:`tmd.wind.acrosswind.generalised_force_psd`; the AIJ-RLB 2004 model
     falls off as f^-3 above its peak, so the table's upper edge carries a
-    negligible share of the response.
+    small share of the variance but a share of the acceleration's second
+    moment that no table length removes; the table says so in its top-decade
+    warning (``edge_advice``).
     """
     f = ACROSS_FREQUENCY_HZ
     psd = acrosswind.generalised_force_psd(
@@ -241,7 +243,8 @@ def across_wind_spectrum(building, top_mean_speed_m_s: float, air_density_kg_m3:
         air_density_kg_m3=air_density_kg_m3)
     return TabulatedSpectrum(f, psd, source=(
         f"across-wind modal force: AIJ-RLB 2004 model (from memory), T = "
-        f"{return_period_years:g} yr, U_H = {top_mean_speed_m_s:.3g} m/s"))
+        f"{return_period_years:g} yr, U_H = {top_mean_speed_m_s:.3g} m/s"),
+        edge_advice=acrosswind.TAIL_NOTE)
 
 
 def return_period_at_speed(speed_of: Callable[[float], float], speed_m_s: float):

@@ -50,12 +50,12 @@ import numpy as np
 SOURCE = ("AIJ Recommendations for Loads on Buildings (2004), A6.4 across-wind "
           "overturning-moment spectrum (coefficients from memory)")
 NOT_VERIFIED = "across-wind model not verified against its source"
-# Said with every across-wind load: the model's F_L ~ n^-2 tail (S ~ f^-3) makes the
-# single-mode acceleration's m2 grow by a constant amount per decade (README).
-TAIL_NOTE = ("the across-wind spectrum falls as f^-3 above its peak (the AIJ-RLB 2004 form), "
-             "so the acceleration's second moment grows by about the same amount in every "
-             "decade: a top-decade warning on this load comes from the model, and a longer "
-             "spectrum table would not remove it")
+# The advice of the top-decade warning on every across-wind load (README): the
+# model's F_L ~ n^-2 tail (S ~ f^-3) makes the single-mode acceleration's m2 grow
+# by a constant amount per decade, so no table length removes the warning.
+TAIL_NOTE = ("this load is the AIJ-RLB 2004 across-wind model, whose spectrum falls as f^-3 "
+             "above its peak, so every decade adds about the same to the second moment and a "
+             "longer table would not remove this share")
 STROUHAL_SOURCE = "AIJ-RLB 2004 A6.4 f_s1 B / U_H (the across-wind model's own, from memory)"
 
 SIDE_RATIO_RANGE = (0.2, 5.0)  # D/B, AIJ-RLB 2004 A6.4 scope (from memory)
