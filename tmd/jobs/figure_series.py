@@ -161,35 +161,6 @@ def acceleration_frequency_response(load: LoadedMode, design: dict | None) -> Re
     return ResponseCurves(f, np.abs(bare), None if damped is None else np.abs(damped))
 
 
-def acceleration_psd(load: LoadedMode, design: dict | None) -> ResponseCurves:
-    """Return the one-sided acceleration PSD S_a(f) [(m/s^2)^2/Hz], bare and damped.
-
-    Parameters
-    ----------
-    load : LoadedMode
-        The case's mode under its design load (:func:`tmd.jobs.loaded_mode_of`).
-    design : dict or None
-        The results.json ``design`` block (mass ratio, frequency ratio, damping
-        ratio); None for the bare building only.
-
-    Returns
-    -------
-    ResponseCurves
-        On :func:`response_frequencies` [Hz], S_a [(m/s^2)^2/Hz] at the
-        evaluation height.
-
-    Notes
-    -----
-    S_a(f) = |H_a(f)|^2 S_F(f), one-sided per Hz (common practice: the
-    input-output relation of linear random vibration).
-    """
-    f = response_frequencies(load.mode.frequency_hz)
-    bare, damped = _acceleration_transfer(load, design, f)
-    s_f = np.asarray(load.spectrum(f), dtype=float)
-    return ResponseCurves(f, np.abs(bare) ** 2 * s_f,
-                          None if damped is None else np.abs(damped) ** 2 * s_f)
-
-
 def mass_ratio_grid(max_mass_ratio: float, design_mass_ratio: float | None) -> np.ndarray:
     """Return log-spaced mass ratios up to the case's maximum, the design's included.
 
