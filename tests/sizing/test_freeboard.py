@@ -127,3 +127,18 @@ def test_exceedance_in_the_terminal_and_report(tight):
     assert check_cells(html, result) > 0
     assert 'data-key="options.0.by_return_period.1.within_freeboard"' in html
     assert 'data-key="options.1.by_return_period.1.peak_free_surface_elevation_m"' in html
+
+
+def test_check_freeboard_warns_only_where_the_rise_exceeds_it():
+    # The verdict is the one comparison rise <= freeboard (equality passes), and
+    # each exceedance warns, naming the option, the return period and the excess.
+    from tmd.sizing.freeboard import FreeboardWarning, check_freeboard
+
+    rows = [{"return_period_years": 1.0, "peak_excursion_m": 0.8},
+            {"return_period_years": 10.0, "peak_excursion_m": 1.0},
+            {"return_period_years": 50.0, "peak_excursion_m": 1.25}]
+    with pytest.warns(FreeboardWarning, match=r"^liquid column: at the 50-year wind the peak "
+                      r"liquid rise 1\.250 m exceeds the freeboard 1\.000 m by 25\.0%") as caught:
+        out = check_freeboard("liquid column", rows, "peak_excursion_m", 1.0, "raise the legs")
+    assert [r["within_freeboard"] for r in out] == [True, True, False]
+    assert len([w for w in caught if issubclass(w.category, FreeboardWarning)]) == 1
