@@ -330,7 +330,9 @@ def print_recommendation(result: dict) -> None:
         return
     which = {"band_design": "the band-robust design", "design": "the nominal design",
              None: "no damper"}[rec["design_key"]]
-    out_console.print(f"[bold]Recommended: {which}.[/] " + escape(rec["why"]), highlight=False)
+    why = rec["why"]  # a clause; it starts a sentence here
+    out_console.print(f"[bold]Recommended: {which}.[/] " + escape(why[:1].upper() + why[1:]),
+                      highlight=False)
     out_console.print("[dim]Rule: " + escape(rec["rule"]) + ".[/]", highlight=False)
     if rec.get("end_stops") and (table := end_stop_table({"end_stops": rec["end_stops"]})):
         table.title = f"recommended design, {table.title}"

@@ -86,7 +86,9 @@ def recommendation_blocks(block: dict, keep) -> list:
              "design": "the nominal design (results key design)",
              None: "no damper"}[block.get("design_key")]
     # Without a damper the damper section states the outcome in its own callout.
-    out = [Callout(f"Recommended: {which}. {block['why']}")] if block.get("design_key") else []
+    why = block.get("why") or ""
+    why = why[:1].upper() + why[1:]  # a clause; it starts a sentence here
+    out = [Callout(f"Recommended: {which}. {why}")] if block.get("design_key") else []
     out += [keep(key_value_table("recommended", "Recommended specification", block,
                                 "recommended", keys=RECOMMENDED_KEYS,
                                 note=f"Rule: {block['rule']}."))]
