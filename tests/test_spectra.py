@@ -72,3 +72,29 @@ def test_bad_tables_name_file_row_and_rule(tmp_path, body, needle):
         read_force_psd_csv(p)
     assert needle in str(err.value)
     assert str(p) in str(err.value)
+
+
+def test_every_number_table_reader_shares_the_plain_decimal_rules(tmp_path):
+    # Issue 13 (defects 10 and 16): a byte-order mark is accepted, and a cell such as
+    # 1_000_000 (which Python's float() would take) is refused with its line and
+    # column, in every input table: force spectra, profile tables, normalised
+    # spectra and cross-spectra all read through read_number_table.
+    from tmd.normalised_spectra import NormalisedFileError, read_normalised_psd_csv
+    from tmd.spectra import read_number_table
+    from tmd.wind.profile_table import ProfileFileError, read_profile_csv
+
+    bom = tmp_path / "bom.csv"
+    bom.write_bytes("\ufeffa_m,b_m\n\n1,2\n3,4\n".encode())
+    table, lines = read_number_table(bom, ("a_m", "b_m"), "test table")
+    np.testing.assert_array_equal(table, [[1.0, 2.0], [3.0, 4.0]])
+    assert lines == [3, 4]  # the file's own line numbers, blank lines counted
+    profile = tmp_path / "p.csv"
+    profile.write_text("height_m,mean_speed_m_s,turbulence_intensity,length_scale_m\n"
+                       "10,20,0.2,100\n300,1_000,0.1,400\n", encoding="utf-8")
+    with pytest.raises(ProfileFileError, match=r"line 3: mean_speed_m_s = '1_000': must be a "
+                       r"plain decimal number"):
+        read_profile_csv(profile)
+    normalised = tmp_path / "n.csv"
+    normalised.write_text("reduced_frequency,normalised_psd\n0.1,nan\n", encoding="utf-8")
+    with pytest.raises(NormalisedFileError, match=r"line 2: normalised_psd = 'nan'"):
+        read_normalised_psd_csv(normalised)

@@ -9,9 +9,7 @@ the entry number for arrays of tables), the key, the value and the rule.
 
 from __future__ import annotations
 
-import csv
 import difflib
-import math
 import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -40,7 +38,7 @@ from tmd.cross_spectra import (
     UncorrelatedForces,
     cross_spectrum_problem,
 )
-from tmd.spectra import SpectrumFileError, read_force_psd_csv
+from tmd.spectra import SpectrumFileError, read_force_psd_csv, read_number_table
 from tmd.wind import Site
 from tmd.wind.acrosswind import NOT_VERIFIED
 
@@ -484,24 +482,9 @@ def _table_loads(path: Path, loads: ModalLoadsTable, n: int) -> tuple[CrossSpect
 
 def _read_cross_csv(where: str, path: Path):
     try:
-        text = path.read_text(encoding="utf-8")
-    except OSError as exc:
-        raise CaseError(f"{where} csv = {str(path)!r}: cannot read ({exc.strerror})") from None
-    rows = list(csv.reader(line for line in text.splitlines() if line.strip()))
-    if not rows or tuple(c.strip() for c in rows[0]) != CROSS_HEADER:
-        got = ",".join(rows[0]) if rows else "(empty file)"
-        raise CaseError(f"{where} csv = {str(path)!r}: header is {got!r}; expected "
-                        f"{','.join(CROSS_HEADER)!r}")
-    values = []
-    for number, row in enumerate(rows[1:], start=2):
-        try:
-            values.append([float(v) for v in row])
-        except ValueError:
-            raise CaseError(f"{where} csv = {str(path)!r}: line {number}: not numbers") from None
-        if len(row) != 3 or not all(math.isfinite(v) for v in values[-1]):
-            raise CaseError(f"{where} csv = {str(path)!r}: line {number}: give three finite "
-                            "numbers")
-    table = np.array(values).reshape(-1, 3)
+        table, _ = read_number_table(path, CROSS_HEADER, "cross-spectrum table")
+    except SpectrumFileError as exc:
+        raise CaseError(f"{where} csv: {exc}") from None
     f = table[:, 0]
     if f.size < 2 or np.any(np.diff(f) <= 0) or f[0] <= 0:
         raise CaseError(f"{where} csv = {str(path)!r}: frequency_hz must be > 0 and strictly "

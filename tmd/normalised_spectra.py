@@ -25,13 +25,12 @@ memory).
 from __future__ import annotations
 
 import csv
-import io
 from dataclasses import dataclass
 from pathlib import Path
 
 import numpy as np
 
-from tmd.spectra import TabulatedSpectrum
+from tmd.spectra import SpectrumFileError, TabulatedSpectrum, read_number_table
 
 NORMALISED_CSV_HEADER = ("reduced_frequency", "normalised_psd")
 QUANTITIES = ("generalised-force", "base-moment")
@@ -272,27 +271,9 @@ def read_normalised_psd_csv(path, quantity="generalised-force") -> NormalisedSpe
     """
     path = Path(path)
     try:
-        text = path.read_bytes().decode("utf-8-sig")
-    except OSError as exc:
-        raise NormalisedFileError(f"{path}: cannot read the normalised spectrum "
-                                  f"({exc.strerror})") from None
-    except UnicodeDecodeError:
-        raise NormalisedFileError(f"{path}: not UTF-8 text") from None
-    rows = [r for r in csv.reader(io.StringIO(text)) if any(c.strip() for c in r)]
-    if not rows or tuple(c.strip() for c in rows[0]) != NORMALISED_CSV_HEADER:
-        got = ",".join(rows[0]) if rows else "(empty file)"
-        raise NormalisedFileError(f"{path}: header is {got!r}; expected "
-                                  f"{','.join(NORMALISED_CSV_HEADER)!r}")
-    values = []
-    for number, row in enumerate(rows[1:], start=2):
-        if len(row) != 2:
-            raise NormalisedFileError(f"{path}: line {number} has {len(row)} columns; expected 2")
-        try:
-            values.append([float(c) for c in row])
-        except ValueError:
-            raise NormalisedFileError(f"{path}: line {number}: {','.join(row)!r} is not two plain "
-                                      "decimal numbers") from None
-    table = np.array(values, dtype=float).reshape(-1, 2)
+        table, _ = read_number_table(path, NORMALISED_CSV_HEADER, "normalised spectrum")
+    except SpectrumFileError as exc:
+        raise NormalisedFileError(str(exc)) from None
     problem = normalised_table_problem(table[:, 0], table[:, 1], first_row=2, row_word="line")
     if problem:
         raise NormalisedFileError(f"{path}: {problem}")

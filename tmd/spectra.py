@@ -346,6 +346,53 @@ def _number(path: Path, line: int, column: str, text: str) -> float:
     return float(text)
 
 
+def read_number_table(path: str | Path, header: tuple[str, ...],
+                      what: str) -> tuple[np.ndarray, list[int]]:
+    """Read a CSV table of plain decimal numbers under an exact header.
+
+    Parameters
+    ----------
+    path : str or Path
+        The CSV file [path]: UTF-8 (a byte-order mark is allowed), any line
+        endings, blank lines ignored.
+    header : tuple of str
+        The column names the first line must hold, in order.
+    what : str
+        What the file is, for messages ("force spectrum", "profile table").
+
+    Returns
+    -------
+    table : numpy.ndarray
+        Shape (rows, len(header)), the values.
+    lines : list of int
+        The file's line number of each row, for messages.
+
+    Raises
+    ------
+    SpectrumFileError
+        If the file cannot be read, is not UTF-8, has another header, a row
+        with another number of columns, or a cell that is not a plain decimal
+        number (no underscores, hex, nan or inf), naming the file, the line,
+        the column and the value.
+    """
+    path = Path(path)
+    text = read_text_file(path, what)
+    numbered = [(n, line) for n, line in enumerate(text.splitlines(), start=1) if line.strip()]
+    rows = [(n, row) for n, row in zip((n for n, _ in numbered),
+                                       csv.reader(line for _, line in numbered), strict=True)]
+    if not rows or tuple(c.strip() for c in rows[0][1]) != header:
+        got = ",".join(rows[0][1]) if rows else "(empty file)"
+        raise SpectrumFileError(f"{path}: header is {got!r}; expected {','.join(header)!r}")
+    values, lines = [], []
+    for number, row in rows[1:]:
+        if len(row) != len(header):
+            raise SpectrumFileError(f"{path}: line {number} has {len(row)} columns; expected "
+                                    f"{len(header)} ({','.join(header)})")
+        values.append(tuple(_number(path, number, c, v) for c, v in zip(header, row, strict=True)))
+        lines.append(number)
+    return np.array(values, dtype=float).reshape(-1, len(header)), lines
+
+
 def read_force_psd_csv(path: str | Path) -> TabulatedSpectrum:
     """Read a modal force PSD table with header ``frequency_hz,psd_n2_per_hz``.
 
@@ -366,22 +413,7 @@ def read_force_psd_csv(path: str | Path) -> TabulatedSpectrum:
         With the file, line, column, value and what is allowed.
     """
     path = Path(path)
-    text = read_text_file(path, "force spectrum")
-    numbered = [(n, line) for n, line in enumerate(text.splitlines(), start=1) if line.strip()]
-    rows = [(n, row) for n, row in zip((n for n, _ in numbered),
-                                       csv.reader(line for _, line in numbered), strict=True)]
-    if not rows or tuple(c.strip() for c in rows[0][1]) != CSV_HEADER:
-        got = ",".join(rows[0][1]) if rows else "(empty file)"
-        raise SpectrumFileError(f"{path}: header is {got!r}; expected {','.join(CSV_HEADER)!r}")
-    values, lines = [], []
-    for number, row in rows[1:]:
-        if len(row) != 2:
-            raise SpectrumFileError(f"{path}: line {number} has {len(row)} columns; expected 2 "
-                                    f"({','.join(CSV_HEADER)})")
-        values.append(tuple(_number(path, number, c, v)
-                            for c, v in zip(CSV_HEADER, row, strict=True)))
-        lines.append(number)
-    table = np.array(values, dtype=float).reshape(-1, 2)
+    table, lines = read_number_table(path, CSV_HEADER, "force spectrum")
     problem = table_problem(table[:, 0], table[:, 1], first_row=2, row_word="line")
     if problem:
         raise SpectrumFileError(f"{path}: {_true_line(problem, lines)}")

@@ -16,13 +16,12 @@ EN 1991-1-4:2005+A1:2010, 4.2 Note 4 (probability factor c_prob, eq. 4.2),
 
 from __future__ import annotations
 
-import csv
-import io
 from dataclasses import dataclass, field
 from pathlib import Path
 
 import numpy as np
 
+from tmd.spectra import SpectrumFileError, read_number_table
 from tmd.wind.profile import AIR_DENSITY_KG_M3, probability_factor
 
 PROFILE_CSV_HEADER = ("height_m", "mean_speed_m_s", "turbulence_intensity", "length_scale_m")
@@ -251,26 +250,9 @@ def read_profile_csv(path, *, covering_height_m=None, **settings) -> ProfileTabl
     """
     path = Path(path)
     try:
-        text = path.read_bytes().decode("utf-8-sig")
-    except OSError as exc:
-        raise ProfileFileError(f"{path}: cannot read the profile table ({exc.strerror})") from None
-    except UnicodeDecodeError:
-        raise ProfileFileError(f"{path}: not UTF-8 text") from None
-    rows = [r for r in csv.reader(io.StringIO(text)) if any(c.strip() for c in r)]
-    if not rows or tuple(c.strip() for c in rows[0]) != PROFILE_CSV_HEADER:
-        got = ",".join(rows[0]) if rows else "(empty file)"
-        raise ProfileFileError(f"{path}: header is {got!r}; expected "
-                               f"{','.join(PROFILE_CSV_HEADER)!r}")
-    values = []
-    for number, row in enumerate(rows[1:], start=2):
-        if len(row) != 4:
-            raise ProfileFileError(f"{path}: line {number} has {len(row)} columns; expected 4")
-        try:
-            values.append([float(c) for c in row])
-        except ValueError:
-            raise ProfileFileError(f"{path}: line {number}: {','.join(row)!r} is not four "
-                                   "plain decimal numbers") from None
-    table = np.array(values, dtype=float).reshape(-1, 4)
+        table, _ = read_number_table(path, PROFILE_CSV_HEADER, "profile table")
+    except SpectrumFileError as exc:
+        raise ProfileFileError(str(exc)) from None
     problem = profile_table_problem(*table.T, first_row=2, row_word="line",
                                     covering_height_m=covering_height_m)
     if problem:
