@@ -116,9 +116,9 @@ def test_a_written_folder_can_be_written_again(tmp_path, monkeypatch):
 
 def test_help_and_bad_input_do_not_load_the_numerical_stack():
     # Issue "Speed" item 5: --help and a bad-input exit must not pay for
-    # scipy, the jobs or the report (they cost most of the start-up time;
-    # measured in bench/bench_jobs.py, never timed here). A fresh interpreter
-    # runs --help and every case command on a missing case file.
+    # numpy, the case schema, scipy, the jobs or the report (they cost most of
+    # the start-up time; measured in bench/bench_jobs.py, never timed here). A
+    # fresh interpreter runs --help and every case command on a missing case file.
     import subprocess
     import sys
 
@@ -126,8 +126,8 @@ def test_help_and_bad_input_do_not_load_the_numerical_stack():
             "for args in (['--help'], ['design', 'no_such_case.toml'],\n"
             "             ['compare', 'no_such_case.toml'], ['wind', 'no_such_case.toml']):\n"
             "    try:\n        app(args)\n    except SystemExit:\n        pass\n"
-            "print(sorted(m for m in ('scipy', 'tmd.jobs', 'tmd.design', 'matplotlib', 'cvxpy',"
-            " 'tmd.building_case') if m in sys.modules))")
+            "print(sorted(m for m in ('numpy', 'tmd.case', 'scipy', 'tmd.jobs', 'tmd.design',"
+            " 'matplotlib', 'cvxpy', 'tmd.building_case') if m in sys.modules))")
     done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
                           check=True)
     assert done.stdout.strip().splitlines()[-1] == "[]"
@@ -181,7 +181,7 @@ def test_design_names_a_case_file_that_is_not_utf8(tmp_path, monkeypatch):
 def test_a_whole_building_case_with_a_byte_order_mark_is_recognised(tmp_path):
     # Issue 13, defect 16: a UTF-8 BOM (EF BB BF, The Unicode Standard ch. 23.8;
     # from memory) is accepted everywhere, so it must not hide [[modes]] either.
-    from tmd.case import is_building_case
+    from tmd.text_input import is_building_case
 
     text = (CASES / "building" / "corvid_spire.toml").read_text(encoding="utf-8")
     case = tmp_path / "case.toml"

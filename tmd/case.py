@@ -14,7 +14,6 @@ from __future__ import annotations
 
 import difflib
 import math
-import tomllib
 from dataclasses import dataclass, field
 from functools import cached_property
 from pathlib import Path
@@ -30,6 +29,7 @@ from tmd.case_options import (
     TmdBankOptionsTable,
     ViscousOptionsTable,
 )
+from tmd.errors import CaseError
 from tmd.loads import (
     COHERENCE_MODELS,
     Building,
@@ -44,7 +44,6 @@ from tmd.rules import (
     PLAUSIBLE,
     Band,
     Duration,
-    InputError,
     ModeFrequency,
     NonNegativeRatio,
     Orography,
@@ -59,8 +58,9 @@ from tmd.rules import (
     shown,
     unique_list,
 )
-from tmd.spectra import ForceSpectrum, SpectrumFileError, read_force_psd_csv, read_text_file
+from tmd.spectra import ForceSpectrum, SpectrumFileError, read_force_psd_csv
 from tmd.structure import Mode
+from tmd.text_input import read_case_toml
 from tmd.wind import AIR_DENSITY_KG_M3, SPECTRUM_MODELS, TERRAIN_CATEGORIES, Site
 from tmd.wind.boundary_layer import PROFILE_MODELS
 from tmd.wind_loads import WindLoad, WindLoadRequest
@@ -72,10 +72,6 @@ from tmd.wind_setup import (
     normalised_case_problem,
     wind_table_problem,
 )
-
-
-class CaseError(InputError):
-    """A case that cannot be used; the message says where and why (exit code 2)."""
 
 
 def _capped(high: float) -> object:
@@ -435,29 +431,6 @@ class Case:
         return None
 
 
-def is_building_case(path: str | Path) -> bool:
-    """Tell whether the file is readable TOML with ``[[modes]]`` (a whole-building case).
-
-    It lives here rather than in :mod:`tmd.building_case` so that the CLI can
-    ask it without importing the building stack (and with it scipy).
-
-    Parameters
-    ----------
-    path : str or Path
-        The case file.
-
-    Returns
-    -------
-    bool
-    """
-    try:
-        # utf-8-sig as read_case reads it: a BOM does not hide [[modes]]; a file that is
-        # not UTF-8 is left to read_case, which names it (exit 2).
-        return "modes" in tomllib.loads(Path(path).read_bytes().decode("utf-8-sig"))
-    except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError):
-        return False
-
-
 def read_case(path: str | Path) -> Case:
     """Read and validate a case file.
 
@@ -477,7 +450,7 @@ def read_case(path: str | Path) -> Case:
         With the file, field, value and what is allowed.
     """
     path = Path(path)
-    return _case_of(_read_toml(path), path)
+    return _case_of(read_case_toml(path), path)
 
 
 def case_from_dict(data: dict[str, Any], *, folder: str | Path = ".") -> Case:
@@ -697,16 +670,6 @@ def _check_damping(path: Path, table: CaseTable, mode: Mode, site: Site, buildin
         f"at z_s, [mode] frequency_hz = {mode.frequency_hz:g} and m_e = {source}. Check "
         "mass_per_length_kg_m, damper_height_m and modal_mass_kg (M* is referred to the damper "
         "level)")
-
-
-def _read_toml(path: Path) -> dict:
-    try:
-        text = read_text_file(path, "case file")
-        return tomllib.loads(text)
-    except SpectrumFileError as exc:
-        raise CaseError(str(exc)) from None
-    except tomllib.TOMLDecodeError as exc:
-        raise CaseError(f"{path}: not valid TOML: {exc}") from None
 
 
 def _describe(path: Path, exc: ValidationError) -> str:

@@ -15,17 +15,15 @@ import os
 import sys
 import warnings
 from pathlib import Path
-from typing import Annotated
+from typing import TYPE_CHECKING, Annotated
 
 import typer
 from rich.markup import escape
 
 from tmd import terminal
 from tmd._version import __version__
-from tmd.case import CaseError, is_building_case, read_case
-from tmd.dampers.tuned_mass import TunedMassDamper
+from tmd.errors import CaseError, InputError
 from tmd.outputs import OutputFolder, to_json
-from tmd.rules import FrequencyRatio, InputError, Ratio, require
 from tmd.terminal import (
     accel,
     err_console,
@@ -42,9 +40,14 @@ from tmd.terminal import (
     return_period_table,
     summary_table,
 )
+from tmd.text_input import is_building_case, read_case_toml
 
-# The jobs (and with them scipy and the damper stack) are imported on first use,
-# so that --help and a bad-input exit stay fast. They are attributes of this
+if TYPE_CHECKING:
+    from tmd.dampers.tuned_mass import TunedMassDamper
+
+# The case reader (numpy, pydantic, the wind models) and the jobs (scipy and the
+# damper stack) are imported on first use, inside the commands, so that --help
+# stays fast. They are attributes of this
 # module (PEP 562), so tests may replace them; commands look them up through _job.
 _JOBS = ("compare_job", "design_job", "evaluate_job", "retune_job", "sweep_job", "wind_job")
 
@@ -189,6 +192,19 @@ def _design_building(case_path: Path, out: Path | None) -> None:
                              "report.html, tables/)"), highlight=False, soft_wrap=True)
 
 
+def _read_case(path: Path):
+    """Return the validated case of a case file.
+
+    The file is read and parsed first, with the standard library: a missing,
+    unreadable or malformed file exits (code 2) before the case schema and the
+    wind models are imported.
+    """
+    read_case_toml(path)
+    from tmd.case import read_case
+
+    return read_case(path)
+
+
 def _case_and_output(case_path: Path, out: Path | None):
     """Return the validated case and its locked, checked output folder, before any computation.
 
@@ -196,7 +212,7 @@ def _case_and_output(case_path: Path, out: Path | None):
     """
     folder = out if out is not None else Path("out") / case_path.stem
     target = _OPEN.get().enter_context(OutputFolder(folder, protected=(case_path,)))
-    c = read_case(case_path)
+    c = _read_case(case_path)
     target.protect(c.input_files)
     return c, target
 
@@ -233,7 +249,7 @@ def evaluate(case: CaseArg,
              json_output: Annotated[bool, typer.Option(
                  "--json", help="Print {\"design\": {...}} as JSON only.")] = False):
     """Responses of one given TMD design (a proposed or as-built damper)."""
-    c = read_case(case)
+    c = _read_case(case)
     damper = _design_from(c, None, (mass_ratio, frequency_ratio, damping_ratio),
                           (damper_mass_kg, damper_stiffness_n_per_m, damper_damping_n_s_per_m))
     result = _job("evaluate_job")(c, damper)
@@ -250,6 +266,9 @@ def _damper_from_options(mass_ratio, frequency_ratio, damping_ratio,
                          names=("--mass-ratio", "--frequency-ratio", "--damping-ratio")
                          ) -> TunedMassDamper:
     """Return a TMD from options, judged by the case file's rules for the same quantities."""
+    from tmd.dampers.tuned_mass import TunedMassDamper
+    from tmd.rules import FrequencyRatio, Ratio, require
+
     rules_of = (Ratio, FrequencyRatio, Ratio)
     values = [require(name, value, rule)
               for name, value, rule in zip(names, (mass_ratio, frequency_ratio, damping_ratio),
@@ -262,7 +281,7 @@ def _damper_from_options(mass_ratio, frequency_ratio, damping_ratio,
 def wind(case: CaseArg,
          json_output: Annotated[bool, typer.Option("--json", help="Print JSON only.")] = False):
     """Wind at the reference height and the EN 1991-1-4 Annex B check, per return period."""
-    c = read_case(case)  # before the job's import: a bad case exits without loading scipy
+    c = _read_case(case)  # before the job's import: a bad case exits without loading scipy
     result = _job("wind_job")(c)
     if json_output:
         typer.echo(to_json(result), nl=False)
@@ -300,7 +319,7 @@ def sweep(case: CaseArg,
           damper_damping_n_s_per_m: DampingNSPerM = None,
           json_output: Annotated[bool, typer.Option("--json", help="Print JSON only.")] = False):
     """Detuning sweeps of a given design (e.g. an as-built damper)."""
-    c = read_case(case)
+    c = _read_case(case)
     damper = _design_from(c, design_from, (mass_ratio, frequency_ratio, damping_ratio),
                           (damper_mass_kg, damper_stiffness_n_per_m, damper_damping_n_s_per_m))
     result = _job("sweep_job")(c, damper)
@@ -389,7 +408,7 @@ def retune(case: CaseArg,
            json_output: Annotated[bool, typer.Option(
                "--json", help="Print {\"retuned\": {...}} as JSON only.")] = False):
     """Re-tune the built damper to the measured structure (its mass kept)."""
-    c = read_case(case)
+    c = _read_case(case)
     d = _design_block(design_from)
     try:
         installed = _built_damper(d["mass_kg"], d["stiffness_n_per_m"], d["damping_n_s_per_m"])
@@ -457,7 +476,7 @@ def simulate(case: CaseArg,
     if not json_output:  # the folder is checked and locked before the simulation runs
         folder = out if out is not None else Path("out") / f"{case.stem}-simulation"
         target = _OPEN.get().enter_context(OutputFolder(folder, protected=(case, design_from)))
-    c = read_case(case)
+    c = _read_case(case)
     if target is not None:
         target.protect(c.input_files)
     device = _simulated_device_from(c, design_from, option)

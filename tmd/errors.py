@@ -18,6 +18,10 @@ class InputError(ValueError):
     """An input that breaks its documented rule; the message says which and why (exit code 2)."""
 
 
+class CaseError(InputError):
+    """A case that cannot be used; the message says where and why (exit code 2)."""
+
+
 class NumericalFailure(RuntimeError):
     """A computation failed numerically; the message says what and with which values."""
 

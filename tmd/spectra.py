@@ -25,6 +25,8 @@ from typing import Protocol, runtime_checkable
 
 import numpy as np
 
+from tmd.text_input import read_text
+
 CSV_HEADER = ("frequency_hz", "psd_n2_per_hz")
 
 
@@ -321,20 +323,7 @@ def read_text_file(path: str | Path, what: str) -> str:
         If the file is missing, unreadable or not UTF-8 (naming the file and
         the first bad byte's position).
     """
-    path = Path(path)
-    try:
-        data = path.read_bytes()
-    except FileNotFoundError:
-        raise SpectrumFileError(f"{path}: no such {what}") from None
-    except OSError as exc:
-        raise SpectrumFileError(f"{path}: cannot read the {what} ({exc.strerror})") from None
-    try:
-        return data.decode("utf-8-sig")
-    except UnicodeDecodeError as exc:
-        line = data[:exc.start].count(b"\n") + 1
-        raise SpectrumFileError(
-            f"{path}: the {what} is not UTF-8 text (byte {data[exc.start]:#04x} at line {line}, "
-            f"byte offset {exc.start}); save it as UTF-8") from None
+    return read_text(path, what, SpectrumFileError)
 
 
 def _number(path: Path, line: int, column: str, text: str) -> float:

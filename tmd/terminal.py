@@ -14,7 +14,6 @@ from rich.markup import escape
 from rich.table import Table
 
 from tmd.constants import STANDARD_GRAVITY
-from tmd.schema import CAUTIONS
 
 NON_TERMINAL_WIDTH = 110  # output piped to a file or a pager, where no COLUMNS is stated
 OPTION_COLUMNS = (  # header (units in brackets), results key, format, display scale
@@ -627,4 +626,7 @@ def print_identified(result: dict, record_name: str) -> None:
     out_console.print("[dim]" + escape(result["damping_note"]) + "[/]", highlight=False)
     for message in result["warnings"]:
         err_console.print(f"[yellow]warning:[/] {escape(message)}", highlight=False)
+    # Imported here: tmd.schema pulls the damper models (numpy), which --help does not need.
+    from tmd.schema import CAUTIONS
+
     out_console.print("[dim]Cautions: " + escape(" ".join(CAUTIONS)) + "[/]", highlight=False)
