@@ -68,8 +68,8 @@ def test_kestrel_point_reduced_velocity_and_critical_speed():
 
 
 def test_return_period_search_matches_closed_form_inverse_of_c_prob():
-    # EN 1991-1-4 eq. 4.2 inverted by hand (tmd.wind.vortex) against brentq on
-    # the site's own U_H(T); rtol 1e-9 (brentq xtol 1e-12 on ln T).
+    # EN 1991-1-4 eq. 4.2 inverted by hand (tmd.wind.vortex) against the
+    # bisection on the site's own U_H(T); rtol 1e-9 (bracket 1e-12 on ln T).
     site = Site("III", basic_speed_m_s=30.0)
     per_unit = float(site.mean_speed(190.0, 50.0)) / float(site.speed_factor(50.0))
     for target in (25.0, 41.0, 47.5):

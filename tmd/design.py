@@ -20,7 +20,6 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.optimize import brentq, minimize
 
 from tmd.dampers.absorber import Absorbers, single_tmd
 from tmd.dampers.tuned_mass import TunedMassDamper, warburton_white_force_tuning
@@ -411,6 +410,10 @@ def tune(loaded: LoadedMode, mass_ratio: float, *, objective: str = "acceleratio
     if max_stroke_m is not None:
         constraints = [{"type": "ineq", "fun": problem.constraint, "jac": problem.constraint_jac}]
         starts.append((ratio0, math.log(min(3 * zeta0, 0.3))))
+    # Imported here: the wind job uses this module's bare response only, and
+    # scipy.optimize costs about 0.6 s of CPU to import (bench/bench_jobs.py).
+    from scipy.optimize import minimize
+
     best = None
     for start in starts:
         res = minimize(problem.fun, np.array(start), jac=problem.jac, method="SLSQP",
@@ -577,6 +580,8 @@ def smallest_meeting_mass_ratio(best_value, target, min_mass_ratio, max_mass_rat
             f"the least-mass search has no answer in mass ratios [{min_mass_ratio:g}, "
             f"{max_mass_ratio:g}]: the best value at {max_mass_ratio:g} is "
             f"{values[float(max_mass_ratio)]:.6g}, above the target {target:.6g}")
+    from scipy.optimize import brentq  # imported here, as minimize above
+
     brentq(gap, min_mass_ratio, max_mass_ratio, xtol=1e-12, rtol=1e-10, maxiter=200)
     meeting = sorted(mu for mu, v in values.items()
                      if meets_target(v, target) and mu not in rejected)

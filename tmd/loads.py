@@ -31,6 +31,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from tmd.height_integral import integrate_over_height
 from tmd.rules import Positive, require
 from tmd.spectra import TabulatedSpectrum
 from tmd.wind.coherence import (
@@ -194,18 +195,20 @@ class Building:
         Notes
         -----
         Power law: h^(2 zeta + 1) / ((2 zeta + 1) z_d^(2 zeta)). Table:
-        scipy.integrate.quad with the table heights as breakpoints.
+        :func:`tmd.height_integral.integrate_over_height` with the table
+        heights as breakpoints (exact for the piecewise-linear shape).
         """
         if self.mode_shape_heights_m is None:
             zeta = self.mode_shape_exponent
             h, z_d = self.height_m, self.damper_height_m
             return h ** (2 * zeta + 1) / ((2 * zeta + 1) * z_d ** (2 * zeta))
-        inside = [z for z in self.mode_shape_heights_m if 0 < z < self.height_m]
-        from scipy.integrate import quad  # deferred: reading a case must not load scipy
+        return integrate_over_height(lambda z: self.mode_shape(z) ** 2, self.height_m,
+                                     self.mode_shape_breakpoints_m)
 
-        value, _ = quad(lambda z: float(self.mode_shape(z)) ** 2, 0.0, self.height_m,
-                        points=inside or None, limit=200)
-        return value
+    @property
+    def mode_shape_breakpoints_m(self) -> tuple[float, ...]:
+        """Heights [m] where the mode shape may have a kink: a table's heights, else none."""
+        return tuple(self.mode_shape_heights_m or ())
 
     def equivalent_mass_per_length(self, modal_mass_kg: float) -> float:
         """Return the equivalent mass per length m_e [kg/m] (EN 1991-1-4 F.4, uniform mass).

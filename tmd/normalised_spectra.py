@@ -211,7 +211,8 @@ class NormalisedSpectrum:
         if self.quantity == "base-moment":
             from tmd.wind.acrosswind import mode_shape_correction
 
-            psd = psd * mode_shape_correction(building.height_m, building.mode_shape) ** 2
+            psd = psd * mode_shape_correction(building.height_m, building.mode_shape,
+                                              building.mode_shape_breakpoints_m) ** 2
         text = f"normalised {self.quantity} spectrum {self.source} at U_H = " \
                f"{top_mean_speed_m_s:.4g} m/s {label}".strip()
         return TabulatedSpectrum(f, psd, source=text)

@@ -12,7 +12,6 @@ import warnings
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.optimize.elementwise import find_root
 
 from tmd.dampers.absorber import Absorbers
 from tmd.errors import NonFiniteResult, NumericalFailure
@@ -397,6 +396,10 @@ def effective_damping_ratio(frequency_hz, modal_mass_kg, sigma_acceleration_m_s2
 
     def gap(log_zeta, f, m, goal):
         return np.log(bare_sigma_acceleration(f, m, np.exp(log_zeta), spectrum) / goal)
+
+    # Imported here: the bare response of the wind job does not need it, and
+    # scipy.optimize costs about 0.6 s of CPU to import (bench/bench_jobs.py).
+    from scipy.optimize.elementwise import find_root
 
     lo, hi = np.log(bracket[0]), np.log(bracket[1])
     with np.errstate(divide="ignore", invalid="ignore"):

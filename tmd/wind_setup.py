@@ -240,7 +240,8 @@ def across_wind_spectrum(building, top_mean_speed_m_s: float, air_density_kg_m3:
     psd = acrosswind.generalised_force_psd(
         f, breadth_m=building.breadth_m, depth_m=building.depth_m, height_m=building.height_m,
         top_mean_speed_m_s=top_mean_speed_m_s, mode_shape=building.mode_shape,
-        air_density_kg_m3=air_density_kg_m3)
+        air_density_kg_m3=air_density_kg_m3,
+        mode_shape_breakpoints_m=building.mode_shape_breakpoints_m)
     return TabulatedSpectrum(f, psd, source=(
         f"across-wind modal force: AIJ-RLB 2004 model (from memory), T = "
         f"{return_period_years:g} yr, U_H = {top_mean_speed_m_s:.3g} m/s"),
@@ -265,19 +266,26 @@ def return_period_at_speed(speed_of: Callable[[float], float], speed_m_s: float)
 
     Notes
     -----
-    scipy.optimize.brentq on ln T, xtol 1e-12.
+    Bisection on ln T to a bracket of 1e-12 (46 halvings of the 13.1-wide
+    bracket ln 0.02 .. ln 10^4). Bisection and not scipy.optimize.brentq:
+    reading a case must not import scipy.optimize, which costs more than
+    the rest of reading a case (issue "Speed"); U_H(T) is cheap and needs
+    only to increase for the bracket to hold the one crossing.
     """
     low, high = (math.log(t) for t in RETURN_PERIOD_SEARCH_YEARS)
 
     def gap(log_t):
         return float(speed_of(math.exp(log_t))) - speed_m_s
 
-    g_low, g_high = gap(low), gap(high)
-    if g_low > 0 or g_high < 0:
+    if gap(low) > 0 or gap(high) < 0:
         return None
-    from scipy.optimize import brentq  # deferred: reading a case must not load scipy
-
-    return math.exp(brentq(gap, low, high, xtol=1e-12))
+    while high - low > 1e-12:
+        middle = 0.5 * (low + high)
+        if gap(middle) < 0:
+            low = middle
+        else:
+            high = middle
+    return math.exp(0.5 * (low + high))
 
 
 def tabulated_speed_of(periods, speeds) -> Callable[[float], float]:
@@ -387,7 +395,7 @@ def across_wind_block(building, mode_frequency_hz: float, periods, top_speeds,
              "side_ratio": side_ratio, "aspect_ratio": aspect,
              "rms_lift_coefficient": acrosswind.rms_lift_coefficient(side_ratio),
              "mode_shape_correction_per_m": acrosswind.mode_shape_correction(
-                 h, building.mode_shape)} | shedding
+                 h, building.mode_shape, building.mode_shape_breakpoints_m)} | shedding
     return block, notes + shedding_notes
 
 
@@ -432,7 +440,8 @@ def spectra_block(building, mode_frequency_hz: float, wind_loads, along_spectra,
     """
     n = SPECTRA_REDUCED_FREQUENCY
     b, h = building.breadth_m, building.height_m
-    eta = acrosswind.mode_shape_correction(h, building.mode_shape)
+    eta = acrosswind.mode_shape_correction(h, building.mode_shape,
+                                           building.mode_shape_breakpoints_m)
     across = (eta * h) ** 2 * acrosswind.normalised_base_moment_psd(n, building.depth_m / b)
     rows = []
     for load, along in zip(wind_loads, along_spectra, strict=True):

@@ -43,9 +43,11 @@ acceleration of prismatic high rise buildings. J. Wind Eng. Ind. Aerodyn.
 from __future__ import annotations
 
 import math
-from collections.abc import Callable
+from collections.abc import Callable, Sequence
 
 import numpy as np
+
+from tmd.height_integral import integrate_over_height
 
 SOURCE = ("AIJ Recommendations for Loads on Buildings (2004), A6.4 across-wind "
           "overturning-moment spectrum (coefficients from memory)")
@@ -286,7 +288,8 @@ def validity_problems(*, side_ratio, aspect_ratio=None, reduced_velocity=None) -
     return [p + f" ({SOURCE}); results there are extrapolated" for p in problems]
 
 
-def mode_shape_correction(height_m: float, mode_shape: Callable) -> float:
+def mode_shape_correction(height_m: float, mode_shape: Callable,
+                          breakpoints_m: Sequence[float] = ()) -> float:
     """Ratio of generalised force to base moment Q / M for a sway mode [1/m].
 
     Parameters
@@ -294,8 +297,10 @@ def mode_shape_correction(height_m: float, mode_shape: Callable) -> float:
     height_m : float
         H [m].
     mode_shape : callable
-        phi(z) [-] of heights z [m], in the normalisation the generalised
-        force is wanted in (e.g. 1 at the damper).
+        phi(z) [-] of an array of heights z [m], in the normalisation the
+        generalised force is wanted in (e.g. 1 at the damper).
+    breakpoints_m : sequence of float
+        Heights [m] where phi may have a kink (a tabulated shape's heights).
 
     Returns
     -------
@@ -314,12 +319,10 @@ def mode_shape_correction(height_m: float, mode_shape: Callable) -> float:
     which is exact for a linear mode shape phi = z / H (eta = 1 / H) whatever
     the distribution; for phi = (z/H)^beta it is 3 / ((beta + 2) H). The
     generalised-force PSD is S_Q = eta^2 S_M. The integral is by
-    scipy.integrate.quad.
+    :func:`tmd.height_integral.integrate_over_height`.
     """
     h = float(height_m)
-    from scipy.integrate import quad  # deferred: reading a case must not load scipy
-
-    value, _ = quad(lambda z: z * float(mode_shape(z)), 0.0, h, limit=200)
+    value = integrate_over_height(lambda z: z * mode_shape(z), h, breakpoints_m)
     return 3.0 * value / h**3
 
 
@@ -360,7 +363,7 @@ def base_moment_psd(frequency_hz, *, breadth_m, depth_m, height_m, top_mean_spee
 
 
 def generalised_force_psd(frequency_hz, *, breadth_m, depth_m, height_m, top_mean_speed_m_s,
-                          mode_shape, air_density_kg_m3=1.25):
+                          mode_shape, air_density_kg_m3=1.25, mode_shape_breakpoints_m=()):
     """One-sided PSD of the across-wind generalised force of a sway mode [N^2/Hz].
 
     This is the stable interface for callers that build modal force spectra
@@ -383,6 +386,8 @@ def generalised_force_psd(frequency_hz, *, breadth_m, depth_m, height_m, top_mea
         normalisation wanted (1 at the damper in this project).
     air_density_kg_m3 : float
         rho [kg/m^3], default 1.25.
+    mode_shape_breakpoints_m : sequence of float
+        Heights [m] where phi may have a kink (a tabulated shape's heights).
 
     Returns
     -------
@@ -395,7 +400,7 @@ def generalised_force_psd(frequency_hz, *, breadth_m, depth_m, height_m, top_mea
     model's full correlation over height, two across-wind sway modes i, j have
     the real cross-PSD eta_i eta_j S_M(f) (coherence 1).
     """
-    eta = mode_shape_correction(height_m, mode_shape)
+    eta = mode_shape_correction(height_m, mode_shape, mode_shape_breakpoints_m)
     return eta**2 * base_moment_psd(frequency_hz, breadth_m=breadth_m, depth_m=depth_m,
                                     height_m=height_m, top_mean_speed_m_s=top_mean_speed_m_s,
                                     air_density_kg_m3=air_density_kg_m3)
