@@ -63,7 +63,9 @@ def figure_makers():
     target = design_results["target"]["peak_acceleration_m_s2"]
     f, s_f = figure_series.force_spectrum_curve(load)
     h = figure_series.acceleration_frequency_response(load, d)
-    p = figure_series.acceleration_psd(load, d)
+    # S_a as the report derives it: from the stored |H_a| and force PSD.
+    p = series.acceleration_psd(series.response_curves(
+        design_results["figure_series"]["response"]))
     grid = figure_series.mass_ratio_grid(case.damper.max_mass_ratio, d["mass_ratio"])
     study = figure_series.mass_ratio_study(load, grid, objective=case.damper.objective,
                                     max_stroke_m=case.damper.max_stroke_m)
