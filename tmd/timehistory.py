@@ -22,6 +22,7 @@ equations of :mod:`tmd.dampers.absorber`.
 from __future__ import annotations
 
 from dataclasses import dataclass
+from functools import cached_property
 
 import numpy as np
 from scipy.linalg import expm
@@ -374,15 +375,29 @@ class NonlinearAbsorber:
         array, shape (..., N)
             -kappa |r'| r' - stop force per unit mass [m/s^2].
         """
+        head_loss, stops, low, stiffness, damping = self._terms
         g = np.zeros(np.shape(stroke))
-        if np.any(self.head_loss_per_m):
+        if head_loss:
             g -= self.head_loss_per_m * np.abs(stroke_velocity) * stroke_velocity
-        if np.any(np.isfinite(self.stop_travel_m)):
-            w = TWO_PI * self.stop_frequency_hz
-            beyond = stroke - np.clip(stroke, -self.stop_travel_m, self.stop_travel_m)
-            g -= w * w * beyond + (2.0 * self.stop_damping_ratio * w) * stroke_velocity * (
-                beyond != 0)
+        if stops:
+            # np.minimum/np.maximum rather than np.clip: the same values without
+            # np.clip's Python-level checks, which cost more than the arithmetic at
+            # the integrator's one call per sub-step.
+            beyond = stroke - np.maximum(np.minimum(stroke, self.stop_travel_m), low)
+            g -= stiffness * beyond + damping * stroke_velocity * (beyond != 0)
         return g
+
+    @cached_property
+    def _terms(self) -> tuple:
+        """Return the terms decided once per absorber set.
+
+        (any head loss, any finite end-stop, -a_j, the stop's stiffness and
+        damping per unit mass).
+        """
+        w = TWO_PI * self.stop_frequency_hz
+        return (bool(np.any(self.head_loss_per_m)), bool(np.any(np.isfinite(self.stop_travel_m))),
+                -np.asarray(self.stop_travel_m, dtype=float), w * w,
+                2.0 * self.stop_damping_ratio * w)
 
 
 def integrate_nonlinear(system: StateSpace, nonlinear: NonlinearAbsorber, force: np.ndarray,
