@@ -212,14 +212,18 @@ class TabulatedSpectrum:
         """
         f = np.asarray(frequency_hz, dtype=float)
         last = self.frequency_hz[-1]
-        inside = (f >= self.f_min_hz) & (f <= last)
-        logf = np.log(np.where(inside, f, self.f_min_hz))
-        value = np.where(inside, np.exp(np.interp(logf, self._log_f, self._log_s)), 0.0)
-        if self.tail_exponent is None:
-            return value
-        above = f > last
-        tail = self.psd_n2_per_hz[-1] * (np.where(above, f, last) / last) ** self.tail_exponent
-        return np.where(above, tail, value)
+        # The engine calls this once per chunk of designs on every grid node, so the
+        # work outside the table (zero, or the power-law tail) is done on those nodes
+        # only; np.interp clamps the rest, which are then overwritten.
+        value = np.asarray(np.exp(np.interp(np.log(np.maximum(f, self.f_min_hz)),
+                                            self._log_f, self._log_s)))
+        outside = ~((f >= self.f_min_hz) & (f <= last))  # NaN counts as outside
+        if outside.any():
+            value[outside] = 0.0
+            if self.tail_exponent is not None:
+                above = f > last
+                value[above] = self.psd_n2_per_hz[-1] * (f[above] / last) ** self.tail_exponent
+        return value
 
     def variance(self) -> float:
         """Return the force variance [N^2], the exact integral of the log-log interpolant.
