@@ -9,7 +9,7 @@ import pytest
 from tests.consistency import assert_consistent_results
 from tmd.case import read_case
 from tmd.compare import OPTIONS, compare_options
-from tmd.jobs import design_job, loaded_mode_of
+from tmd.jobs import loaded_mode_of
 
 CASE_FILE = Path(__file__).resolve().parent.parent / "cases" / "harbourline_residences.toml"
 COMMON = ("option", "mass_kg", "mass_ratio", "peak_acceleration_m_s2", "peak_stroke_m",
@@ -43,12 +43,11 @@ def test_every_option_has_the_issue_keys(rows):
                                                                                rel=1e-12)
 
 
-def test_tmd_row_equals_the_design_job(rows):
-    # The same case through `tmd design` (tmd.jobs.design_job) must give the same TMD.
-    case, result = rows
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore")
-        designed = design_job(case)
+def test_tmd_row_equals_the_design_job(rows, design_results):
+    # The same case through `tmd design` (tmd.jobs.design_job, the session's run of
+    # the demo file, tests/conftest.py) must give the same TMD.
+    _, result = rows
+    designed = design_results(CASE_FILE)
     assert_consistent_results(designed)
     design = designed["design"]
     row = result[0]
