@@ -65,7 +65,7 @@ def _job(name):
     return getattr(sys.modules[__name__], name)
 
 
-app = typer.Typer(add_completion=False, no_args_is_help=True,
+app = typer.Typer(add_completion=False, no_args_is_help=True, rich_markup_mode=None,
                   help="Size passive dampers for a wind-excited building mode.")
 
 
@@ -82,7 +82,8 @@ def _main(version: Annotated[bool, typer.Option(
     """Size passive dampers for a wind-excited building mode."""
 
 
-CaseArg = Annotated[Path, typer.Argument(help="Case file (TOML).", show_default=False)]
+CaseArg = Annotated[Path, typer.Argument(help="Case file (TOML).", show_default=False,
+                                         metavar="CASE")]
 
 
 def _error(kind: str, exc: Exception) -> None:
@@ -237,7 +238,7 @@ DampingNSPerM = Annotated[float | None, typer.Option(
     "--damper-damping-n-s-per-m", help="Built damper dashpot c_d [N·s/m].")]
 
 
-@app.command()
+@app.command(short_help="Responses of one given TMD design.")
 @_guarded
 def evaluate(case: CaseArg,
              mass_ratio: Annotated[float | None, typer.Option(help="m_d / M* [-].")] = None,
@@ -276,7 +277,7 @@ def _damper_from_options(mass_ratio, frequency_ratio, damping_ratio,
     return TunedMassDamper(*values)
 
 
-@app.command()
+@app.command(short_help="Wind and the EN 1991-1-4 Annex B check.")
 @_guarded
 def wind(case: CaseArg,
          json_output: Annotated[bool, typer.Option("--json", help="Print JSON only.")] = False):
@@ -318,7 +319,7 @@ def sweep(case: CaseArg,
           damper_mass_kg: MassKg = None, damper_stiffness_n_per_m: StiffnessNPerM = None,
           damper_damping_n_s_per_m: DampingNSPerM = None,
           json_output: Annotated[bool, typer.Option("--json", help="Print JSON only.")] = False):
-    """Detuning sweeps of a given design (e.g. an as-built damper)."""
+    """Detuning sweeps of a given design, such as an as-built damper."""
     c = _read_case(case)
     damper = _design_from(c, design_from, (mass_ratio, frequency_ratio, damping_ratio),
                           (damper_mass_kg, damper_stiffness_n_per_m, damper_damping_n_s_per_m))
@@ -393,7 +394,7 @@ def _design_block(path: Path) -> dict:
     return block
 
 
-@app.command()
+@app.command(short_help="Re-tune the built damper to the measured structure.")
 @_guarded
 def retune(case: CaseArg,
            design_from: Annotated[Path, typer.Option(
@@ -423,10 +424,11 @@ def retune(case: CaseArg,
     print_retuned(result, c.name)
 
 
-@app.command()
+@app.command(short_help="Frequency and damping from an ambient record.")
 @_guarded
 def identify(record: Annotated[Path, typer.Argument(
-                 help="CSV record, header time_s,acceleration_m_s2.", show_default=False)],
+                 help="CSV record, header time_s,acceleration_m_s2.", show_default=False,
+                 metavar="RECORD")],
              min_frequency_hz: Annotated[float | None, typer.Option(
                  help="Look for the mode above this frequency [Hz].")] = None,
              max_frequency_hz: Annotated[float | None, typer.Option(
@@ -447,7 +449,7 @@ SIMULATION_OPTIONS = {"records": "--records", "duration_s": "--duration-s",
                       "time_step_s": "--time-step-s", "substeps": "--substeps"}
 
 
-@app.command()
+@app.command(short_help="Check a design by simulated records.")
 @_guarded
 def simulate(case: CaseArg,
              design_from: Annotated[Path, typer.Option(
