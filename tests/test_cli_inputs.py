@@ -202,3 +202,24 @@ def test_a_whole_building_case_outside_design_is_named_as_such(command):
     assert result.exit_code == 2, result.output
     assert "a whole-building case ([[modes]]) is run by 'tmd design' only" in result.output
     assert "unknown key" not in result.output
+
+
+def test_a_whole_building_case_file_follows_the_one_mode_reading_rules(tmp_path):
+    # The whole-building reader had its own TOML reading: a UTF-8 BOM (EF BB BF,
+    # The Unicode Standard ch. 23.8; from memory) that `design` recognised as a
+    # building case then failed as "not valid TOML", and a Latin-1 file ended in
+    # exit 1. Both readers now share tmd.text_input: the BOM is read, the
+    # Latin-1 byte 0xE9 (ISO/IEC 8859-1; from memory) is named, exit 2.
+    from tmd.building_case import load_building_case
+    from tmd.errors import CaseError
+
+    text = (CASES / "building" / "corvid_spire.toml").read_text(encoding="utf-8")
+    case = tmp_path / "case.toml"
+    case.write_bytes(b"\xef\xbb\xbf" + text.encode("utf-8"))
+    plain = load_building_case(CASES / "building" / "corvid_spire.toml")
+    assert load_building_case(case).inputs == plain.inputs
+    case.write_bytes(("# Tour \u00e9tude\n" + text).encode("latin-1"))
+    with pytest.raises(CaseError, match=r"case.toml: the case file is not UTF-8 text \(byte 0xe9"):
+        load_building_case(case)
+    result = runner.invoke(app, ["design", str(case), "--out", str(tmp_path / "out")])
+    assert result.exit_code == 2, result.output

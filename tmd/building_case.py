@@ -10,7 +10,6 @@ the entry number for arrays of tables), the key, the value and the rule.
 from __future__ import annotations
 
 import difflib
-import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Annotated, Any, Literal
@@ -39,6 +38,7 @@ from tmd.cross_spectra import (
     cross_spectrum_problem,
 )
 from tmd.spectra import SpectrumFileError, read_force_psd_csv, read_number_table
+from tmd.text_input import read_case_toml
 from tmd.wind import Site
 from tmd.wind.acrosswind import NOT_VERIFIED
 
@@ -260,13 +260,8 @@ def load_building_case(path: str | Path) -> BuildingCase:
         With the file, field, value and the rule broken.
     """
     path = Path(path)
-    try:
-        with open(path, "rb") as handle:
-            raw = tomllib.load(handle)
-    except OSError as exc:
-        raise CaseError(f"{path}: cannot read the case file ({exc.strerror})") from None
-    except tomllib.TOMLDecodeError as exc:
-        raise CaseError(f"{path}: not valid TOML: {exc}") from None
+    # The one-mode reader's rules: UTF-8 with or without a BOM, the file named.
+    raw = read_case_toml(path)
     try:
         table = BuildingCaseTable.model_validate(raw)
     except ValidationError as exc:
