@@ -251,3 +251,37 @@ def test_least_mass_for_probability_holds_the_stroke_limit_at_the_stroke_load(ca
     # tune keeps an active stroke limit 1e-7 inside it (tmd.design STROKE_MARGIN).
     assert stroke(extreme, held.design) <= limit
     assert held.design.mass_ratio > free.mass_ratio
+
+
+@pytest.mark.parametrize("distribution", ["normal", "lognormal"])
+def test_tensor_interpolant_from_spline_coefficients_is_the_spline_of_interpolated_rows(
+        distribution):
+    # The random-damping probability interpolates the grid's excess by a cubic
+    # spline in u_s (linear in its data) of a barycentric interpolant in u_d
+    # (linear in its values), so the engine forms one spline and weights its
+    # coefficients. Reference: scipy's CubicSpline built afresh through each
+    # interpolated row (BarycentricInterpolator), as before; rtol 1e-12
+    # (rounding only). The excess is a smooth field with crossings that move
+    # with u_d and vanish past u_d = 2 (a kink), so that the kink search and its
+    # panels take part.
+    from scipy.interpolate import BarycentricInterpolator
+
+    import tmd.robust.probabilistic as prob
+
+    unc = Uncertainty(0.07, 0.3, distribution)
+    u_s, u_d = prob._tensor_nodes(unc)
+    s, d = np.meshgrid(u_s, u_d)
+    values = 0.8 + 0.1 * d - np.exp(-0.5 * ((s - 0.4 * d) / 1.3) ** 2)
+    lo, hi = prob._damping_span(unc)
+    rows = BarycentricInterpolator(u_d, values, axis=0)
+
+    def curves(v):
+        return rows(np.clip(np.asarray(v, float), lo, hi))
+
+    want = prob._outer_expectation(
+        lambda v: prob._spline_crossings(u_s, curves(v))[0],
+        lambda v: prob._spline_crossings(u_s, curves(v))[1],
+        unc.panel_nodes, unc.distribution.kinks(unc.damping_cov))
+    got = prob._grid_probability(unc, values)
+    assert 0.05 < want < 0.95
+    assert got == pytest.approx(want, rel=1e-12)

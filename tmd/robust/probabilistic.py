@@ -59,7 +59,7 @@ from enum import StrEnum
 
 import numpy as np
 from numpy.polynomial.legendre import leggauss
-from scipy.interpolate import BarycentricInterpolator, CubicSpline
+from scipy.interpolate import BarycentricInterpolator, CubicSpline, PPoly
 from scipy.optimize import brentq
 from scipy.optimize.elementwise import find_root
 from scipy.special import ndtr, ndtri
@@ -432,16 +432,23 @@ def _grid_probability(uncertainty: Uncertainty, values) -> float:
         return float(_spline_crossings(u_s, np.atleast_2d(values))[0][0])
     u_s, u_d = _tensor_nodes(uncertainty)
     lo, hi = _damping_span(uncertainty)
-    interpolant = BarycentricInterpolator(u_d, values, axis=0)
+    # The cubic spline in u_s is linear in its data and the barycentric interpolant
+    # in u_d is linear in its values, so the spline of an interpolated row is the
+    # interpolated spline: one spline through every u_d node's row, and per call a
+    # weighted sum of its coefficients, not a new spline solve (about 30 calls of
+    # the kink search per probability).
+    node_spline = CubicSpline(u_s, np.asarray(values, float).T)
+    basis = BarycentricInterpolator(u_d, np.eye(u_d.size), axis=0)
 
-    def curves(v):
-        return interpolant(np.clip(np.asarray(v, float), lo, hi))
+    def splines(v):
+        weights = basis(np.clip(np.atleast_1d(np.asarray(v, float)), lo, hi))
+        return PPoly(node_spline.c @ weights.T, u_s)
 
     def conditional(v):
-        return _spline_crossings(u_s, curves(v))[0]
+        return _crossings(splines(v), u_s)[0]
 
     def root_count(v):
-        return _spline_crossings(u_s, curves(v))[1]
+        return _crossings(splines(v), u_s)[1]
 
     return _outer_expectation(conditional, root_count, uncertainty.panel_nodes,
                               uncertainty.distribution.kinks(uncertainty.damping_cov))
@@ -787,15 +794,24 @@ def _spline_crossings(u_s, curves):
     (so a tangency does not flip it), and beyond the grid the end points'
     signs hold.
     """
-    spline = CubicSpline(u_s, curves.T)
+    return _crossings(CubicSpline(u_s, curves.T), u_s)
+
+
+def _crossings(spline, u_s):
+    """(P[spline(u) > 0], crossing count) of each of a piecewise cubic's columns.
+
+    See :func:`_spline_crossings`; ``spline`` is a ``scipy.interpolate.PPoly``
+    on the breakpoints ``u_s`` whose coefficients have one column per curve.
+    """
+    rows = spline.c.shape[-1]
     roots = [np.unique(r) for r in np.atleast_1d(spline.roots(extrapolate=False))]
     inner = [np.concatenate([[u_s[0]], r, [u_s[-1]]]) for r in roots]
     middles = [0.5 * (e[:-1] + e[1:]) for e in inner]
     # Every row at every row's midpoints: one evaluation, then each row takes its own.
     points = np.concatenate(middles)
     values = spline(points)
-    probability = np.empty(curves.shape[0])
-    count = np.empty(curves.shape[0], dtype=int)
+    probability = np.empty(rows)
+    count = np.empty(rows, dtype=int)
     start = 0
     for k, (r, mid) in enumerate(zip(roots, middles, strict=True)):
         over = values[start:start + mid.size, k] > 0
