@@ -77,6 +77,11 @@ class ModeShape:
         """
         return cls((0.0, float(height_m)), (0.0, x), (0.0, y), (0.0, theta), float(exponent))
 
+    @property
+    def breakpoints_m(self) -> tuple[float, ...]:
+        """Heights [m] where the shape may have a kink: a table's heights, none for a power law."""
+        return self.heights_m if self.exponent is None else ()
+
     def values(self, height_m) -> np.ndarray:
         """Components (phi_x, phi_y, phi_theta) at the given heights.
 

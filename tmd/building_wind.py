@@ -222,8 +222,7 @@ def across_wind_corrections(modes: tuple[BuildingMode, ...], height_m: float,
     # As the strip model's rows: a sway below 1e-12 across the wind (a rounding
     # of the direction's sine or cosine) counts as none.
     return np.array([acrosswind.mode_shape_correction(
-        height_m, lambda z, m=m: m.shape.values(z)[..., :2] @ across,
-        m.shape.heights_m if m.shape.exponent is None else ())
+        height_m, lambda z, m=m: m.shape.values(z)[..., :2] @ across, m.shape.breakpoints_m)
         if np.max(np.abs(m.shape.values(z)[:, :2] @ across)) > 1e-12 else 0.0 for m in modes])
 
 

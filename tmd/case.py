@@ -449,8 +449,31 @@ def read_case(path: str | Path) -> Case:
     CaseError
         With the file, field, value and what is allowed.
     """
-    path = Path(path)
-    return _case_of(read_case_toml(path), path)
+    return case_from_tables(read_case_toml(path), path)
+
+
+def case_from_tables(tables: dict[str, Any], path: str | Path) -> Case:
+    """Validate the tables of a case file already read (:func:`tmd.text_input.read_case_toml`).
+
+    Parameters
+    ----------
+    tables : dict
+        The case file's tables and keys, as parsed from its TOML.
+    path : str or Path
+        The case file: messages name it, and relative file names in the
+        tables (force spectrum CSV, profile table) are looked up beside it.
+
+    Returns
+    -------
+    Case
+        The validated case, its wind loads computed for every return period.
+
+    Raises
+    ------
+    CaseError
+        With the file, field, value and what is allowed.
+    """
+    return _case_of(tables, Path(path))
 
 
 def case_from_dict(data: dict[str, Any], *, folder: str | Path = ".") -> Case:

@@ -200,10 +200,10 @@ def _read_case(path: Path):
     unreadable or malformed file exits (code 2) before the case schema and the
     wind models are imported.
     """
-    read_case_toml(path)
-    from tmd.case import read_case
+    tables = read_case_toml(path)
+    from tmd.case import case_from_tables
 
-    return read_case(path)
+    return case_from_tables(tables, path)
 
 
 def _case_and_output(case_path: Path, out: Path | None):

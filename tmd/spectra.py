@@ -306,30 +306,6 @@ class SpectrumFileError(ValueError):
 _NUMBER = re.compile(r"[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?")
 
 
-def read_text_file(path: str | Path, what: str) -> str:
-    """Return the text of an input file: UTF-8, with or without a byte-order mark.
-
-    Parameters
-    ----------
-    path : str or Path
-        The file [path].
-    what : str
-        What the file is, for messages ("case file", "force spectrum").
-
-    Returns
-    -------
-    str
-        The text without a BOM.
-
-    Raises
-    ------
-    SpectrumFileError
-        If the file is missing, unreadable or not UTF-8 (naming the file and
-        the first bad byte's position).
-    """
-    return read_text(path, what, SpectrumFileError)
-
-
 def _number(path: Path, line: int, column: str, text: str) -> float:
     """Parse a plain decimal number: no underscores, hex, nan or inf, as a spreadsheet writes it."""
     text = text.strip()
@@ -369,7 +345,7 @@ def read_number_table(path: str | Path, header: tuple[str, ...],
         the column and the value.
     """
     path = Path(path)
-    text = read_text_file(path, what)
+    text = read_text(path, what, SpectrumFileError)
     numbered = [(n, line) for n, line in enumerate(text.splitlines(), start=1) if line.strip()]
     rows = [(n, row) for n, row in zip((n for n, _ in numbered),
                                        csv.reader(line for _, line in numbered), strict=True)]
