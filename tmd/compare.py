@@ -44,6 +44,7 @@ from tmd.performance import assess, effective_damping_ratio
 from tmd.registry import OPTION_NAMES
 from tmd.robust import band_maximum, peak_acceleration_band_max, structure_damping_ratios
 from tmd.rules import MAX_OPTION_NAMES, Band, Positive, Ratio, require, unique_list
+from tmd.side_by_side import side_by_side
 from tmd.sizing.bank import BankSettings, size_tmd_bank
 from tmd.sizing.freeboard import (
     FREEBOARD_NOTE,
@@ -184,7 +185,20 @@ def compare_options(loaded: LoadedMode, target_peak_m_s2: float, *, enabled=None
     job = _Job(loaded, target_peak_m_s2, max_mass_ratio, max_stroke_m, frequency_band,
                settings or OptionSettings(), tmd_sizing, tuple(stroke_loads),
                tuple(return_period_loads))
-    rows = [{"option": name} | OPTIONS[name](job) for name in names]
+    rows = {name: None for name in names}
+    # The bank (its convex solver and cvxpy's import take about as long as every other
+    # row together) is sized in a second process while this one sizes the rest.
+    beside = "tmd-bank" if len(names) > 1 and "tmd-bank" in names else None
+
+    def the_rest():
+        return {name: OPTIONS[name](job) for name in names if name != beside}
+
+    if beside is None:
+        rows |= the_rest()
+    else:
+        rest, rows[beside] = side_by_side(the_rest, lambda: OPTIONS[beside](job))
+        rows |= rest
+    rows = [{"option": name} | row for name, row in rows.items()]
     for row in rows:
         # Every verdict is the one comparison on the number the row reports.
         row["meets_target"] = meets_target(row["peak_acceleration_m_s2"], target_peak_m_s2)

@@ -75,6 +75,11 @@ class LoadWarning(UserWarning):
         self.load = load
         self.values = dict(values)
 
+    def __reduce__(self):
+        # Pickled by its own arguments (an exception pickles its message only), so that
+        # a warning raised in a child process (tmd.side_by_side) arrives whole.
+        return type(self), (self.load, self.values)
+
     @classmethod
     def text(cls, load: str, values: dict[str, float], count: int) -> str:
         """Return the warning in words.

@@ -302,17 +302,6 @@ def probabilistic_study(loaded: LoadedMode, nominal: TunedMassDamper, target_pea
         the fields of the ``design`` block plus ``exceedance_probability``,
         ``meets_probability``, ``governed_by`` and ``message``.
     """
-    def block(damper):
-        if damper is None:
-            return None
-        sampled = sampled_exceedance_probability(loaded, damper, target_peak_m_s2, uncertainty,
-                                                 structure_damping_ratio=structure_damping_ratio)
-        return {"exceedance_probability": exceedance_probability(
-                    loaded, damper, target_peak_m_s2, uncertainty,
-                    structure_damping_ratio=structure_damping_ratio),
-                "exceedance_probability_sampled": sampled.probability,
-                "sampling_standard_error": sampled.standard_error}
-
     sized = None
     if uncertainty.exceedance_probability is not None:
         s = least_mass_for_probability(loaded, target_peak_m_s2, uncertainty,
@@ -325,8 +314,49 @@ def probabilistic_study(loaded: LoadedMode, nominal: TunedMassDamper, target_pea
             "exceedance_probability": s.exceedance_probability,
             "meets_probability": s.meets_probability, "governed_by": s.governed_by,
             "message": s.message}
+
+    def block(damper):
+        return probability_block(loaded, damper, target_peak_m_s2, uncertainty,
+                                 structure_damping_ratio=structure_damping_ratio)
+
     return {"inputs": uncertainty.inputs(), "nominal": block(nominal), "robust": block(robust),
             "least_mass_design": sized}
+
+
+def probability_block(loaded: LoadedMode, damper: TunedMassDamper | None,
+                      target_peak_m_s2: float, uncertainty: Uncertainty, *,
+                      structure_damping_ratio: StructureDamping | None = None) -> dict | None:
+    """Return one design's entry of the ``probabilistic`` block (``nominal`` or ``robust``).
+
+    Parameters
+    ----------
+    loaded : LoadedMode
+        The mode under its design load, with the reporting conventions.
+    damper : TunedMassDamper or None
+        The design; None gives None (no such design).
+    target_peak_m_s2 : float
+        Peak acceleration target [m/s^2].
+    uncertainty : Uncertainty
+        The random structure frequency and damping, the sampling seed and count.
+    structure_damping_ratio : callable, optional
+        zeta_s(s) [-] before the damping factor e multiplies it.
+
+    Returns
+    -------
+    dict or None
+        ``exceedance_probability`` (:func:`exceedance_probability`),
+        ``exceedance_probability_sampled`` and ``sampling_standard_error``
+        (:func:`sampled_exceedance_probability`).
+    """
+    if damper is None:
+        return None
+    sampled = sampled_exceedance_probability(loaded, damper, target_peak_m_s2, uncertainty,
+                                             structure_damping_ratio=structure_damping_ratio)
+    return {"exceedance_probability": exceedance_probability(
+                loaded, damper, target_peak_m_s2, uncertainty,
+                structure_damping_ratio=structure_damping_ratio),
+            "exceedance_probability_sampled": sampled.probability,
+            "sampling_standard_error": sampled.standard_error}
 
 
 def exceedance_probability(loaded: LoadedMode, damper: TunedMassDamper | None,

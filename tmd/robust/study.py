@@ -6,7 +6,7 @@ from tmd.dampers.tuned_mass import TunedMassDamper
 from tmd.defaults import FREQUENCY_BAND, MAX_MASS_RATIO
 from tmd.design import LoadedMode
 from tmd.robust.minimax import RobustSizing, robust_least_mass
-from tmd.robust.probabilistic import probabilistic_study
+from tmd.robust.probabilistic import probabilistic_study, probability_block
 from tmd.robust.sweeps import (
     DASHPOT_RANGE,
     SPRING_RANGE,
@@ -20,6 +20,7 @@ from tmd.robust.sweeps import (
 )
 from tmd.rules import Band, SweepRange, require
 from tmd.schema import design_block
+from tmd.side_by_side import side_by_side
 
 # --- one call per job -------------------------------------------------------
 
@@ -95,20 +96,35 @@ def robustness_study(loaded: LoadedMode, nominal: TunedMassDamper, target_peak_m
                         result["worst_structure_frequency_factor"])
     at_nominal = float(loaded.assess(nominal.absorbers(loaded.mode)).peak_acceleration_m_s2)
     robust = robust_sizing
-    if robust is not None:
-        result["band_design"] = robust_design_block(robust)
-    elif robust_design:
-        robust = robust_least_mass(loaded, target_peak_m_s2, frequency_band,
-                                   max_mass_ratio=max_mass_ratio, max_stroke_m=max_stroke_m,
-                                   structure_damping_ratio=structure_damping_ratio,
-                                   stroke_loads=stroke_loads)
-        result["band_design"] = robust_design_block(robust)
-    if probabilistic is not None:
-        result["probabilistic"] = probabilistic_study(
-            loaded, nominal, target_peak_m_s2, probabilistic,
-            robust=robust.design.damper if robust and robust.design else None,
+
+    def robust_search():
+        if robust is not None or not robust_design:
+            return robust
+        return robust_least_mass(loaded, target_peak_m_s2, frequency_band,
+                                 max_mass_ratio=max_mass_ratio, max_stroke_m=max_stroke_m,
+                                 structure_damping_ratio=structure_damping_ratio,
+                                 stroke_loads=stroke_loads)
+
+    def probability_search():
+        # Everything of the probabilistic block but the robust design's entry, which
+        # needs the robust search: so the two searches can run side by side.
+        return probabilistic_study(
+            loaded, nominal, target_peak_m_s2, probabilistic, robust=None,
             max_mass_ratio=max_mass_ratio, max_stroke_m=max_stroke_m,
             structure_damping_ratio=structure_damping_ratio, stroke_loads=stroke_loads)
+
+    if probabilistic is not None and robust is None and robust_design:
+        robust, chances = side_by_side(robust_search, probability_search)
+    else:
+        robust = robust_search()
+        chances = probability_search() if probabilistic is not None else None
+    if robust is not None:
+        result["band_design"] = robust_design_block(robust)
+    if chances is not None:
+        chances["robust"] = probability_block(
+            loaded, robust.design.damper if robust and robust.design else None,
+            target_peak_m_s2, probabilistic, structure_damping_ratio=structure_damping_ratio)
+        result["probabilistic"] = chances
     extra = None
     if robust is not None and robust.design is not None:
         extra = robust.design.mass_kg - nominal.mass_kg(loaded.mode)
