@@ -10,6 +10,7 @@ import pytest
 from matplotlib.text import Text
 from rich.console import Console
 
+from tests.report.conftest import TEST_DPI
 from tmd.jobs import loaded_mode_of
 from tmd.report import plots, series, simulation_plots
 from tmd.report.assemble import render_report
@@ -336,3 +337,18 @@ def test_progress_is_quiet_off_terminal_and_reports_steps(case_report):
     with progress_bar("report", console=Console(file=loud, force_terminal=True)) as step:
         step(1, 2, "figure")
     assert step is not quiet_step
+
+
+def test_figures_rendered_on_two_cores_are_the_serial_files_byte_for_byte(monkeypatch,
+                                                                          compare_report):
+    # The report renders alternate figures in a second process (tmd.side_by_side);
+    # the reference is the same report rendered in one process (TMD_PROCESSES=1).
+    from tmd.side_by_side import ENVIRONMENT_VARIABLE
+
+    _, results, _ = compare_report
+    parallel = render_report(results, dpi=TEST_DPI)
+    monkeypatch.setenv(ENVIRONMENT_VARIABLE, "1")
+    serial = render_report(results, dpi=TEST_DPI)
+    assert parallel == serial
+    pngs = [name for name in serial if name.endswith(".png")]
+    assert len(pngs) >= 5 and all(serial[name].startswith(b"\x89PNG") for name in pngs)

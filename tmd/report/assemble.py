@@ -33,6 +33,7 @@ from tmd.report.tables import (
     retuning_table,
 )
 from tmd.schema import DESIGN_REPORT_ORDER
+from tmd.side_by_side import side_by_side
 
 SWEEP_TITLES = (
     ("sweep", "Detuning sweep of the design (structure frequency factor)"),
@@ -130,6 +131,7 @@ class _Report:
         self.target = float(results["target"]["peak_acceleration_m_s2"])
         self.tables: list[Table] = []
         self.figures: list[Figure] = []
+        self._axes: list = []  # the figures' axes, in the order of self.figures
         self.plan = self._plan()
 
     # -- bookkeeping -------------------------------------------------------------------
@@ -150,9 +152,32 @@ class _Report:
         return table
 
     def _figure(self, name: str, ax, caption: str) -> Figure:
-        figure = Figure(name, plots.png_bytes(ax, self.dpi), caption)
+        # Drawn now, rendered to PNG later with the others, on two cores where there
+        # are (savefig is most of a report's time): _render_figures replaces this
+        # placeholder in its section.
+        figure = Figure(name, b"", caption)
         self.figures.append(figure)
+        self._axes.append(ax)
         return figure
+
+    def _render_figures(self, sections: list[Section]) -> None:
+        """Render every figure to PNG, alternate ones in a second process (side_by_side)."""
+        axes = self._axes
+
+        def render(part):
+            return lambda: [plots.png_bytes(ax, self.dpi) for ax in part]
+
+        here, there = side_by_side(render(axes[0::2]), render(axes[1::2]))
+        pngs = [None] * len(axes)
+        pngs[0::2], pngs[1::2] = here, there
+        done = {id(old): Figure(old.name, png, old.caption)
+                for old, png in zip(self.figures, pngs, strict=True)}
+        for section in sections:
+            section.blocks[:] = [done.get(id(block), block) for block in section.blocks]
+        placeholders = {id(f) for f in self.figures}
+        if any(id(block) in placeholders for section in sections for block in section.blocks):
+            raise RuntimeError("a report figure is not a block of its section")
+        self.figures = [done[id(f)] for f in self.figures]
 
     def files(self) -> dict[str, bytes]:
         sections = [self.job_section(), self.inputs_section(), self.bare_section(),
@@ -166,6 +191,7 @@ class _Report:
             sections.append(self.options_section())
         sections.append(self.cautions_section())
         self._step("html")
+        self._render_figures(sections)
         name = self.results["case"]["name"]
         lead = (f"Prepared with tmd {self.results.get('tool_version', '')} "
                 f"(results schema {self.results.get('schema_version', '')}). "
