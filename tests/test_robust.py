@@ -217,3 +217,24 @@ def test_band_optimal_tuning_has_more_damper_damping(case, mu):
     nominal_damper = TunedMassDamper(mu, nominal.frequency_ratio, nominal.damping_ratio)
     nominal_worst = assess_structure_factors(case, nominal_damper, grid)[0]
     assert band.value < nominal_worst.peak_acceleration_m_s2.max()
+
+
+def test_a_failing_mass_is_judged_on_the_free_optimum_a_lower_bound(case):
+    # Constraining the stroke shrinks the feasible set, so the stroke-limited
+    # minimax is at least the free one (a property of any constrained minimum).
+    # A light damper at a tight stroke limit: the free optimum breaks the limit
+    # and fails the target, so fails_above returns it as a lower bound; the full
+    # solve (the reference) lies above it and fails too.
+    grid = factor_grid(BAND, 21)
+    mu, limit = 0.002, 0.05
+    free = tune_for_band(case, mu, grid)
+    full = tune_for_band(case, mu, grid, max_stroke_m=limit)
+    bound = tune_for_band(case, mu, grid, max_stroke_m=limit, fails_above=TARGET)
+    assert free.peak_stroke_m > limit and free.value > TARGET  # the premise of the check
+    assert bound.lower_bound and not full.lower_bound
+    assert bound.value == pytest.approx(free.value, rel=1e-12)
+    assert bound.value <= full.value * (1 + 1e-9) and full.value > TARGET
+    # A mass whose free optimum meets the value is solved in full, as without it.
+    heavy = tune_for_band(case, 0.03, grid, max_stroke_m=0.6, fails_above=TARGET)
+    assert not heavy.lower_bound
+    assert heavy == tune_for_band(case, 0.03, grid, max_stroke_m=0.6)

@@ -72,6 +72,11 @@ class BandTuning:
         Largest peak stroke relative to the structure over that grid [m].
     stroke_limited : bool
         True when the stroke limit is active at the optimum.
+    lower_bound : bool
+        True when ``value`` is only a lower bound of the stroke-limited
+        minimax: the free optimum, whose tuning breaks the stroke limit,
+        returned because it already fails ``fails_above`` (see
+        :func:`tune_for_band`). Not a design.
     """
 
     frequency_ratio: float
@@ -79,6 +84,7 @@ class BandTuning:
     value: float
     peak_stroke_m: float
     stroke_limited: bool
+    lower_bound: bool = False
 
 
 @dataclass(frozen=True)
@@ -119,7 +125,8 @@ def tune_for_band(loaded: LoadedMode, mass_ratio: float, frequency_factors, *,
                   max_stroke_m: float | None = None,
                   structure_damping_ratio: StructureDamping | None = None,
                   start: tuple[float, float] | None = None,
-                  stroke_loads: tuple[LoadedMode, ...] = ()) -> BandTuning:
+                  stroke_loads: tuple[LoadedMode, ...] = (),
+                  fails_above: float | None = None) -> BandTuning:
     """Tuning of a TMD of given mass ratio that minimises the worst peak over a grid of s.
 
     Parameters
@@ -142,6 +149,13 @@ def tune_for_band(loaded: LoadedMode, mass_ratio: float, frequency_factors, *,
         peak stroke must also stay within ``max_stroke_m``, at every s of the
         grid, each with its own band damping
         (:meth:`tmd.design.LoadedMode.structure_damping_ratio`).
+    fails_above : float, optional
+        A peak acceleration [m/s^2] that only the sign of the answer matters
+        against (a least-mass search): when the free optimum's worst peak
+        already fails it (:func:`tmd.verdict.meets_target`), the
+        stroke-limited problem is not solved and the free optimum is returned
+        with ``lower_bound`` True. The limit can only raise the minimax, so
+        the stroke-limited tuning fails it too.
 
     Returns
     -------
@@ -177,6 +191,12 @@ def tune_for_band(loaded: LoadedMode, mass_ratio: float, frequency_factors, *,
         # The limit is not active at the free optimum, so that is the optimum.
         return BandTuning(float(free[2][0]), float(math.exp(free[2][1])), math.exp(free[1]),
                           free[3], False)
+    if fails_above is not None and not meets_target(math.exp(free[1]), fails_above):
+        # Constraining the stroke shrinks the feasible set, so the minimax can only
+        # rise: this mass fails either way, and the constrained solve (the slowest,
+        # at a light damper's large strokes) is not needed for the verdict.
+        return BandTuning(float(free[2][0]), float(math.exp(free[2][1])), math.exp(free[1]),
+                          free[3], False, lower_bound=True)
     problem = _BandProblem(loaded, mass_ratio, factors, max_stroke_m, structure_damping_ratio,
                            extra)
     infeasible, worst, x, stroke = _solve_band(problem, starts + [(free[2][0],
@@ -293,16 +313,19 @@ def _robust_search(loaded, goal, target, band, grid, max_mu, min_mu, max_stroke_
     last = []
     tunings = {}
 
-    def best(mu):
+    def best(mu, fails_above=goal):
         # Warm-started from the last tuning: SLSQP from the nominal optimum can
         # zig-zag on the nearly degenerate worst-case constraints. One tuning
-        # per mass ratio, so that the answer is the tuning the search saw.
+        # per mass ratio, so that the answer is the tuning the search saw. In the
+        # search only the verdict against the goal matters where a mass fails
+        # (fails_above); the largest mass is tuned in full, as it may be reported.
         if mu in tunings:
             return tunings[mu]
         tuning = tune_for_band(loaded, mu, grid, max_stroke_m=max_stroke_m,
                                structure_damping_ratio=damping,
-                               start=last[-1] if last else None, stroke_loads=stroke_loads)
-        if np.isfinite(tuning.value):
+                               start=last[-1] if last else None, stroke_loads=stroke_loads,
+                               fails_above=fails_above)
+        if np.isfinite(tuning.value) and not tuning.lower_bound:
             last.append((tuning.frequency_ratio, tuning.damping_ratio))
         tunings[mu] = tuning
         return tuning
@@ -315,7 +338,7 @@ def _robust_search(loaded, goal, target, band, grid, max_mu, min_mu, max_stroke_
         return RobustSizing(evaluate_tmd(loaded, damper, target), band, worst, met, governed_by,
                             message)
 
-    top = best(max_mu)
+    top = best(max_mu, fails_above=None)
     if not meets_target(top.value, goal):
         limit = "stroke" if top.stroke_limited or not np.isfinite(top.value) else "mass"
         reason = (f"the peak stroke limit of {max_stroke_m:g} m" if limit == "stroke"
