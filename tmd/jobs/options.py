@@ -16,6 +16,7 @@ from tmd.jobs.shared import (
     with_notes,
 )
 from tmd.notes import about
+from tmd.side_by_side import side_by_side
 
 
 def option_settings_of(case: Case):
@@ -65,9 +66,11 @@ def compare_job(case: Case) -> dict:
             "target": target_block(case),
             "bare": bare_block(load),
             "options_frequency_band": band,
-            "options": _options(load),
         }
-        result["figure_series"] = figure_series_of(case, load, result)
+        # The report's curves draw no option (no design, sweep or band design here), so
+        # they are computed in a second process while the options are sized.
+        result["options"], result["figure_series"] = side_by_side(
+            lambda: _options(load), lambda: figure_series_of(case, load, dict(result)))
         return result
 
     def _options(load):
