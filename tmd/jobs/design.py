@@ -36,6 +36,7 @@ from tmd.jobs.shared import (
 from tmd.notes import about
 from tmd.recommend import recommendation
 from tmd.schema import design_block
+from tmd.side_by_side import side_by_side
 from tmd.simulated_sizing import common_period_s, simulated_peak, size_for_simulated_peak
 from tmd.simulation import SimulationSettings
 from tmd.verdict import meets_target
@@ -215,8 +216,11 @@ def design_job(case: Case) -> dict:
         else:
             result |= bare_sweeps(load, settings)
         result |= across_block(case)
-        result["recommended"] = _recommended(case, load, result)
-        result["figure_series"] = figure_series_of(case, load, result)
+        # The report's curves draw the design, its sweep and band design, not the
+        # recommendation: the two are computed side by side (tmd.side_by_side).
+        result["recommended"], result["figure_series"] = side_by_side(
+            lambda: _recommended(case, load, result),
+            lambda: figure_series_of(case, load, dict(result)))
         return result
 
     return with_notes(build, case)
