@@ -116,3 +116,11 @@ def test_the_design_job_gives_the_serial_results_bit_for_bit(monkeypatch, design
     monkeypatch.setenv(sbs.ENVIRONMENT_VARIABLE, "1")
     serial = design_job(kestrel_case)
     assert to_json(serial) == to_json(parallel)
+
+
+@pytest.mark.parametrize("platform", ["darwin", "win32"])
+def test_one_process_off_linux(monkeypatch, platform):
+    # macOS fork is unsafe once system libraries start threads; Windows has none.
+    monkeypatch.setattr(sbs.sys, "platform", platform)
+    assert not sbs.parallel_available()
+    assert sbs.side_by_side(os.getpid, os.getpid) == (os.getpid(), os.getpid())

@@ -16,8 +16,9 @@ returns both results as if they had run one after the other:
   that cannot be pickled, a crash), the second computation runs again here,
   so that its exception and traceback are this process's own.
 
-It runs the two one after the other, here, when the platform has no fork
-(Windows; macOS spawns by default and a spawned child would import
+It runs the two one after the other, here, on any platform but Linux
+(Windows has no fork; on macOS fork is not safe once system libraries such
+as Accelerate have started threads, and a spawned child would import
 everything again), when fewer than two CPUs are available to the process,
 inside such a child (no grandchildren), or when the environment variable
 ``TMD_PROCESSES`` is ``1``.
@@ -27,6 +28,7 @@ from __future__ import annotations
 
 import multiprocessing
 import os
+import sys
 import warnings
 from collections.abc import Callable
 from typing import TypeVar
@@ -47,11 +49,13 @@ def parallel_available() -> bool:
     Returns
     -------
     bool
-        False on a platform without fork, with fewer than two CPUs available
+        False on any platform but Linux, with fewer than two CPUs available
         to this process, inside a child of :func:`side_by_side`, or with
         ``TMD_PROCESSES=1`` in the environment.
     """
     if _IN_CHILD or os.environ.get(ENVIRONMENT_VARIABLE, "").strip() == "1":
+        return False
+    if not sys.platform.startswith("linux"):
         return False
     if "fork" not in multiprocessing.get_all_start_methods():
         return False
