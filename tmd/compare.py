@@ -185,20 +185,20 @@ def compare_options(loaded: LoadedMode, target_peak_m_s2: float, *, enabled=None
     job = _Job(loaded, target_peak_m_s2, max_mass_ratio, max_stroke_m, frequency_band,
                settings or OptionSettings(), tmd_sizing, tuple(stroke_loads),
                tuple(return_period_loads))
-    rows = {name: None for name in names}
     # The bank (its convex solver and cvxpy's import take about as long as every other
     # row together) is sized in a second process while this one sizes the rest.
     beside = "tmd-bank" if len(names) > 1 and "tmd-bank" in names else None
+    here = [name for name in names if name != beside]
 
-    def the_rest():
-        return {name: OPTIONS[name](job) for name in names if name != beside}
+    def size_here():
+        return {name: OPTIONS[name](job) for name in here}
 
     if beside is None:
-        rows |= the_rest()
+        sized = size_here()
     else:
-        rest, rows[beside] = side_by_side(the_rest, lambda: OPTIONS[beside](job))
-        rows |= rest
-    rows = [{"option": name} | row for name, row in rows.items()]
+        sized, bank = side_by_side(size_here, lambda: OPTIONS[beside](job))
+        sized[beside] = bank
+    rows = [{"option": name} | sized[name] for name in names]
     for row in rows:
         # Every verdict is the one comparison on the number the row reports.
         row["meets_target"] = meets_target(row["peak_acceleration_m_s2"], target_peak_m_s2)

@@ -14,7 +14,7 @@ Dynamics 10, 381-401.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 from scipy.optimize import minimize
@@ -187,16 +187,16 @@ def tune_for_band(loaded: LoadedMode, mass_ratio: float, frequency_factors, *,
     extra = tuple(stroke_loads) if max_stroke_m is not None else ()
     free = _solve_band(_BandProblem(loaded, mass_ratio, factors, None, structure_damping_ratio,
                                     extra), starts)
+    free_tuning = BandTuning(float(free[2][0]), float(math.exp(free[2][1])), math.exp(free[1]),
+                             free[3], False)
     if max_stroke_m is None or free[3] <= max_stroke_m:
         # The limit is not active at the free optimum, so that is the optimum.
-        return BandTuning(float(free[2][0]), float(math.exp(free[2][1])), math.exp(free[1]),
-                          free[3], False)
-    if fails_above is not None and not meets_target(math.exp(free[1]), fails_above):
+        return free_tuning
+    if fails_above is not None and not meets_target(free_tuning.value, fails_above):
         # Constraining the stroke shrinks the feasible set, so the minimax can only
         # rise: this mass fails either way, and the constrained solve (the slowest,
         # at a light damper's large strokes) is not needed for the verdict.
-        return BandTuning(float(free[2][0]), float(math.exp(free[2][1])), math.exp(free[1]),
-                          free[3], False, lower_bound=True)
+        return replace(free_tuning, lower_bound=True)
     problem = _BandProblem(loaded, mass_ratio, factors, max_stroke_m, structure_damping_ratio,
                            extra)
     infeasible, worst, x, stroke = _solve_band(problem, starts + [(free[2][0],

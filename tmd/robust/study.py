@@ -97,9 +97,9 @@ def robustness_study(loaded: LoadedMode, nominal: TunedMassDamper, target_peak_m
     at_nominal = float(loaded.assess(nominal.absorbers(loaded.mode)).peak_acceleration_m_s2)
     robust = robust_sizing
 
+    searching = robust is None and robust_design
+
     def robust_search():
-        if robust is not None or not robust_design:
-            return robust
         return robust_least_mass(loaded, target_peak_m_s2, frequency_band,
                                  max_mass_ratio=max_mass_ratio, max_stroke_m=max_stroke_m,
                                  structure_damping_ratio=structure_damping_ratio,
@@ -113,10 +113,10 @@ def robustness_study(loaded: LoadedMode, nominal: TunedMassDamper, target_peak_m
             max_mass_ratio=max_mass_ratio, max_stroke_m=max_stroke_m,
             structure_damping_ratio=structure_damping_ratio, stroke_loads=stroke_loads)
 
-    if probabilistic is not None and robust is None and robust_design:
+    if searching and probabilistic is not None:
         robust, chances = side_by_side(robust_search, probability_search)
     else:
-        robust = robust_search()
+        robust = robust_search() if searching else robust
         chances = probability_search() if probabilistic is not None else None
     if robust is not None:
         result["band_design"] = robust_design_block(robust)
