@@ -124,3 +124,22 @@ def test_one_process_off_linux(monkeypatch, platform):
     monkeypatch.setattr(sbs.sys, "platform", platform)
     assert not sbs.parallel_available()
     assert sbs.side_by_side(os.getpid, os.getpid) == (os.getpid(), os.getpid())
+
+
+class _BrokenOnArrival:
+    """Pickles, but fails to unpickle (its reconstructor raises)."""
+
+    def __reduce__(self):
+        return _refuse, ()
+
+
+def _refuse():
+    raise TypeError("cannot be rebuilt")
+
+
+@needs_fork
+def test_a_result_that_does_not_unpickle_is_computed_here_instead():
+    # The child's result pickles but cannot be rebuilt here: the second block
+    # runs again in this process, whose result (built here, never unpickled) returns.
+    here, there = sbs.side_by_side(lambda: 1, _BrokenOnArrival)
+    assert here == 1 and isinstance(there, _BrokenOnArrival)

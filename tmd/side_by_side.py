@@ -100,9 +100,11 @@ def side_by_side(first: Callable[[], First], second: Callable[[], Second]
     reader, writer = context.Pipe(duplex=False)
     child = context.Process(target=_run_in_child, args=(second, writer), daemon=True)
     with warnings.catch_warnings():
-        # Python 3.12+ warns that fork in a process with threads may deadlock: the
-        # only threads here are the BLAS library's idle workers (reset by its own
-        # fork handler), and the child takes no lock that a thread may hold.
+        # Python 3.12+ warns that fork in a process with threads may deadlock. The
+        # threads here are the BLAS library's idle workers (reset by its own fork
+        # handler) and, while a report is written on a terminal, the progress bar's
+        # refresh thread; the child takes no lock they may hold (it prints nothing,
+        # and its warnings are recorded, not shown).
         warnings.simplefilter("ignore", DeprecationWarning)
         child.start()
     writer.close()
@@ -115,7 +117,7 @@ def side_by_side(first: Callable[[], First], second: Callable[[], Second]
         raise
     try:
         status, there, caught = reader.recv()
-    except (EOFError, OSError):
+    except Exception:  # noqa: BLE001 - a crash (EOF) or a result that does not unpickle
         status, there, caught = "failed", None, []
     finally:
         reader.close()
